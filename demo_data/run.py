@@ -1,0 +1,55 @@
+"""``pairflip demo``: the whole job on the bundled data, nothing to prepare, nothing downloaded."""
+
+from __future__ import annotations
+
+import tempfile
+import time
+from pathlib import Path
+from typing import Any
+
+from rich.console import Console
+
+from pairflip.demo.models import MODEL_NAMES, load_sentences, trained
+
+
+def run_demo(*, out_dir: Path | None, seed: int, examples: int, console: Console, log: Console) -> list[Any]:
+    import joblib
+
+    from pairflip.files import write_results, write_suite
+    from pairflip.perturb import build_suite
+    from pairflip.probes import PythonModel, score
+    from pairflip.report import render, summarize
+    from pairflip.report.build_summary import render_build_stats
+
+    t0 = time.perf_counter()
+    tmp = None
+    if out_dir is None:
+        tmp = tempfile.TemporaryDirectory(prefix="pairflip-demo-")
+        out = Path(tmp.name)
+    else:
+        out = Path(out_dir)
+        out.mkdir(parents=True, exist_ok=True)
+    try:
+        models = {}
+        for name in MODEL_NAMES:
+            models[name] = trained(name, seed)
+            joblib.dump(models[name], out / f"{name}.joblib")
+        log.print(f"trained {len(models)} demo models on demo_data/reviews.csv in {time.perf_counter() - t0:.1f}s", markup=False)
+        t1 = time.perf_counter()
+        suite = build_suite(load_sentences(), seed=seed)
+        suite.header["corpus"] = "demo_data/sentences.txt"
+        write_suite(suite, out / "suite.jsonl")
+        render_build_stats(suite.stats, out / "suite.jsonl", log)
+        log.print(f"built the suite in {time.perf_counter() - t1:.1f}s", markup=False)
+        summaries = []
+        for name, m in models.items():
+            res = score(suite, PythonModel(m, spec=str(out / f"{name}.joblib"), name=name), suite_path=str(out / "suite.jsonl"))
+            write_results(res, out / f"results-{name}.jsonl")
+            summaries.append(summarize(res, examples=max(5, examples)))
+        render(summaries, console=console, examples=examples)
+        where = f"files in {out}" if out_dir is not None else "rerun with --out-dir DIR to keep the suite, models and results"
+        log.print(f"demo finished in {time.perf_counter() - t0:.1f}s; {where}", markup=False)
+        return summaries
+    finally:
+        if tmp is not None:
+            tmp.cleanup()

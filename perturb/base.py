@@ -1,0 +1,212 @@
+"""The shape every rule shares: candidates of token edits, one function that applies them, one
+validator that judges the result.
+
+A rule is a generator over one parsed spaCy ``Doc`` (like spaCy's ``noun_chunks`` iterator): it
+yields :class:`Candidate` objects made of :class:`TokenEdit` replacements and never glues strings
+itself. :func:`apply_edits` turns a candidate into the variant text and the character-level edits
+stored in the suite; :func:`validate` says why a variant must be dropped, or ``None``.
+"""
+
+from __future__ import annotations
+
+import random
+import re
+from dataclasses import dataclass, field
+from typing import TYPE_CHECKING, Any, Callable, Iterator
+
+from pairflip.records import Edit
+
+if TYPE_CHECKING:  # pragma: no cover
+    from spacy.tokens import Doc, Token
+
+    from pairflip.perturb.lexicon import Lexicon
+
+
+@dataclass(frozen=True)
+class TokenEdit:
+    """Replace tokens ``doc[start:end]`` by ``text``.
+
+    ``start == end`` inserts ``text`` before token ``start`` (at the end of the text when
+    ``start == len(doc)``); an empty ``text`` deletes the tokens. The replaced span runs from the
+    first token's first character to the last token's last character: the whitespace after the
+    last token is kept, so ``text`` never carries leading or trailing spaces.
+    """
+
+    start: int
+    end: int
+    text: str
+
+
+@dataclass(frozen=True)
+class Candidate:
+    """One variant a rule proposes: its rule name, expectation and edits."""
+
+    rule: str  # "negation/do-support"
+    should: str  # "flip" | "hold" | "strengthen" | "weaken" | "none"
+    edits: tuple[TokenEdit, ...]
+    meta: dict[str, Any] = field(default_factory=dict, hash=False, compare=False)
+
+
+@dataclass
+class Context:
+    """What a rule may consult besides the parse: the lexicons and a seeded random source."""
+
+    lexicon: "Lexicon"
+    rng: random.Random
+    seed: int = 0
+
+
+Rule = Callable[["Doc", Context], Iterator[Candidate]]
+
+PUNCT_CLOSE = set(",.;:!?)]}%")
+NEGATORS = {"not", "n't", "never", "no", "cannot", "nothing", "nobody", "none", "nowhere", "neither", "nor"}
+
+
+def lemma(tok: "Token") -> str:
+    """The token's lemma; from lemminflect when the pipeline runs without a lemmatizer."""
+    if tok.lemma_:
+        return tok.lemma_
+    from lemminflect import getLemma
+
+    upos = {"VERB": "VERB", "AUX": "AUX", "ADJ": "ADJ", "ADV": "ADV", "NOUN": "NOUN"}.get(tok.pos_, "VERB")
+    cands = getLemma(tok.text, upos=upos) if tok.text else ()
+    return (cands[0] if cands else tok.text).lower() if tok.text != "I" else "I"
+
+
+def match_case(new: str, old: str) -> str:
+    """Give ``new`` the capitalisation style of ``old`` (ALL CAPS, Title, or as is)."""
+    if old.isupper() and len(old) > 1:
+        return new.upper()
+    if old[:1].isupper():
+        return new[:1].upper() + new[1:]
+    return new
+
+
+def _starts_upper(text: str) -> bool:
+    for ch in text:
+        if ch.isalpha():
+            return ch.isupper()
+    return False
+
+
+def apply_edits(doc: "Doc", edits: tuple[TokenEdit, ...] | list[TokenEdit]) -> tuple[str, list[Edit]]:
+    """Apply token edits to ``doc.text``; return the variant and its character-level edits.
+
+    Keeps each untouched token's own whitespace, removes the whitespace a deletion leaves behind,
+    closes up space before punctuation that an edit put at a join, and gives the variant a capital
+    at the start when the source had one. Edits must not overlap.
+    """
+    text = doc.text
+    spans: list[tuple[int, int, str]] = []
+    for e in sorted(edits, key=lambda e: (e.start, e.end)):
+        if e.start < 0 or e.end > len(doc) or e.start > e.end:
+            raise ValueError(f"token edit {e} out of range for a doc of {len(doc)} tokens")
+        if e.start == e.end:  # insertion
+            if e.start < len(doc):
+                pos = doc[e.start].idx
+                spans.append((pos, pos, e.text + " "))
+            else:
+                last = doc[-1]
+                pos = last.idx + len(last.text)
+                spans.append((pos, pos, " " + e.text))
+            continue
+        first, last = doc[e.start], doc[e.end - 1]
+        s, t = first.idx, last.idx + len(last.text)
+        if e.text == "":  # deletion: take one side's whitespace with it
+            if last.whitespace_:
+                t += len(last.whitespace_)
+            elif s > 0 and text[s - 1].isspace():
+                s -= 1
+        spans.append((s, t, e.text))
+    spans.sort()
+    for (s1, t1, _), (s2, _t2, _) in zip(spans, spans[1:]):
+        if s2 < t1:
+            raise ValueError("token edits overlap")
+
+    out: list[str] = []
+    char_edits: list[Edit] = []
+    cursor = 0
+    for s, t, new in spans:
+        before = text[cursor:s]
+        if new[:1] in PUNCT_CLOSE and before.endswith(" ") and not (s, t) == (s, s):
+            # "great , and" -> "great, and" when an edit starts with punctuation
+            stripped = before.rstrip(" ")
+            s -= len(before) - len(stripped)
+            before = stripped
+        out.append(before)
+        out.append(new)
+        char_edits.append(Edit(s, t, new))
+        cursor = t
+    out.append(text[cursor:])
+    variant = "".join(out)
+    # Collapse double spaces created at a join (never those the source already had).
+    if "  " in variant and "  " not in text:
+        variant = re.sub(r" {2,}", " ", variant)
+    variant = variant.strip() if not text[:1].isspace() and not text[-1:].isspace() else variant
+    if _starts_upper(text) and not _starts_upper(variant):
+        for i, ch in enumerate(variant):
+            if ch.isalpha():
+                variant = variant[:i] + ch.upper() + variant[i + 1 :]
+                break
+    return variant, char_edits
+
+
+_WORD = re.compile(r"[^\W_]+(?:['’][^\W_]+)*", re.UNICODE)
+
+
+def words(text: str) -> list[str]:
+    """Lower-cased words, punctuation dropped (used by the reorder multiset check)."""
+    return [w.lower() for w in _WORD.findall(text)]
+
+
+_DOUBLED_NEG = re.compile(
+    r"\b(?:not|never|no|cannot)\s+(?:not|never|no)\b|n't\s+(?:not|never)\b|\bnot\s+\w+n't\b", re.IGNORECASE
+)
+_DO_PLUS = re.compile(r"\b(?:do|does|did)(?:n't|\s+not)\s+([a-z]+)\b", re.IGNORECASE)
+
+
+def validate(doc: "Doc", cand: Candidate, variant: str) -> str | None:
+    """Why the variant must be dropped, or ``None``. Judged from the source and the edit only."""
+    source = doc.text
+    if not variant.strip():
+        return "empty variant"
+    if variant == source:
+        return "unchanged"
+    if _DOUBLED_NEG.search(variant) and not _DOUBLED_NEG.search(source):
+        return "doubled negation"
+    if re.search(r" [,.;:!?]", variant) and not re.search(r" [,.;:!?]", source):
+        return "space before punctuation"
+    if "  " in variant and "  " not in source:
+        return "double space"
+    if re.search(r",\s*,|\.\s*,|,\s*\.", variant) and not re.search(r",\s*,|\.\s*,|,\s*\.", source):
+        return "doubled punctuation"
+    if _starts_upper(source) and not _starts_upper(variant):
+        return "no capital at the start"
+    vw, sw = words(variant), words(source)
+    for a, b in zip(vw, vw[1:]):
+        if a == b and a.isalpha() and f"{a} {b}" not in " ".join(sw):
+            return "repeated word"
+    if cand.rule.startswith("reorder/") and sorted(vw) != sorted(sw):
+        return "reorder changed the words"
+    for m in _DO_PLUS.finditer(variant):
+        if m.group(0) in source:
+            continue
+        verb = m.group(1).lower()
+        if not _is_base_form(verb):
+            return "agreement: do-support needs the base form"
+    return None
+
+
+_BASE_CACHE: dict[str, bool] = {}
+
+
+def _is_base_form(word: str) -> bool:
+    """True when ``word`` can be a verb's base form (lemminflect), or is not a verb at all."""
+    if word in _BASE_CACHE:
+        return _BASE_CACHE[word]
+    from lemminflect import getAllLemmas
+
+    lemmas = getAllLemmas(word, upos="VERB")
+    ok = not lemmas or word in {l for ls in lemmas.values() for l in ls}
+    _BASE_CACHE[word] = ok
+    return ok

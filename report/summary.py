@@ -1,0 +1,217 @@
+"""Numbers only: turn verdicts into per-family and per-rule rates with intervals.
+
+Nothing here renders or prints. :class:`Summary` is the one object every renderer and exporter
+reads, and :meth:`Summary.to_dict` is the ``show --json`` schema.
+"""
+
+from __future__ import annotations
+
+from collections import defaultdict
+from dataclasses import dataclass, field
+from typing import Any, Iterable, Sequence
+
+from pairflip.records import Results, Verdict
+from pairflip.report.stats import cluster_bootstrap_ci, wilson_interval
+
+SUMMARY_VERSION = 1
+
+
+@dataclass
+class Example:
+    """One violated pair, for the report's worst-examples list."""
+
+    id: str
+    rule: str
+    should: str
+    source: str
+    variant: str
+    source_pred: str
+    variant_pred: str
+    source_score: float | None
+    variant_score: float | None
+    severity: float  # how confident the violation is; higher is worse
+
+    def to_dict(self) -> dict[str, Any]:
+        return dict(self.__dict__)
+
+
+@dataclass
+class GroupStats:
+    """Counts and rates for one family, one rule, or one source label."""
+
+    should: str
+    pairs: int = 0
+    applicable: int = 0
+    flips: int = 0
+    violations: int = 0
+    not_applicable: int = 0
+    ci95: tuple[float, float] = (0.0, 0.0)
+    flip_ci95: tuple[float, float] = (0.0, 0.0)
+    rules: dict[str, "GroupStats"] = field(default_factory=dict)
+    by_label: dict[str, "GroupStats"] = field(default_factory=dict)
+    examples: list[Example] = field(default_factory=list)
+
+    @property
+    def flip_rate(self) -> float:
+        return self.flips / self.pairs if self.pairs else 0.0
+
+    @property
+    def violation_rate(self) -> float:
+        return self.violations / self.applicable if self.applicable else 0.0
+
+    def to_dict(self, *, with_rules: bool = True) -> dict[str, Any]:
+        out: dict[str, Any] = {
+            "should": self.should,
+            "pairs": self.pairs,
+            "applicable": self.applicable,
+            "flips": self.flips,
+            "flip_rate": self.flip_rate,
+            "violations": self.violations,
+            "violation_rate": self.violation_rate,
+            "ci95": [self.ci95[0], self.ci95[1]],
+            "not_applicable": self.not_applicable,
+            "flip_ci95": [self.flip_ci95[0], self.flip_ci95[1]],
+        }
+        if with_rules:
+            out["rules"] = {r: g.to_dict(with_rules=False) for r, g in self.rules.items()}
+            if self.by_label:
+                out["by_label"] = {lab: g.to_dict(with_rules=False) for lab, g in self.by_label.items()}
+            out["examples"] = [e.to_dict() for e in self.examples]
+        return out
+
+
+@dataclass
+class Summary:
+    """Everything the report shows, computed once from one results file."""
+
+    families: dict[str, GroupStats]
+    model: dict[str, Any]
+    suite: dict[str, Any]
+    labels: dict[str, Any] = field(default_factory=dict)
+    accuracy: dict[str, Any] | None = None  # {"correct", "sources", "rate", "ci95"} when gold labels exist
+    interval: str = "wilson"  # or "cluster-bootstrap"
+    header: dict[str, Any] = field(default_factory=dict)
+
+    @property
+    def model_name(self) -> str:
+        return str(self.model.get("name") or self.model.get("spec") or "model")
+
+    def to_dict(self) -> dict[str, Any]:
+        return {
+            "version": SUMMARY_VERSION,
+            "families": {f: g.to_dict() for f, g in self.families.items()},
+            "model": self.model,
+            "suite": self.suite,
+            "labels": self.labels,
+            "accuracy": self.accuracy,
+            "interval": self.interval,
+        }
+
+
+def _severity(v: Verdict) -> float:
+    """How confident a violation is: the polarity-score movement in the wrong direction."""
+    if v.source_score is None or v.variant_score is None:
+        return 0.0
+    s, t = v.source_score, v.variant_score
+    if v.should == "flip":
+        return abs(t) if (s > 0) == (t > 0) else 0.0  # confidently kept the same side
+    if v.should == "hold":
+        return abs(t - s)
+    if v.should == "strengthen":
+        return max(0.0, abs(s) - abs(t)) + (1.0 if s * t < 0 else 0.0)
+    if v.should == "weaken":
+        return max(0.0, abs(t) - abs(s)) + (1.0 if s * t < 0 else 0.0)
+    return 0.0
+
+
+def _fill(g: GroupStats, vs: Sequence[Verdict], cluster: str | None, seed: int, n_boot: int) -> None:
+    g.pairs = len(vs)
+    g.flips = sum(1 for v in vs if v.flipped)
+    appl = [v for v in vs if v.verdict != "n/a" and v.should != "none"]
+    g.applicable = len(appl)
+    g.violations = sum(1 for v in appl if v.verdict == "violation")
+    g.not_applicable = sum(1 for v in vs if v.verdict == "n/a")
+    if cluster == "source":
+        g.ci95 = cluster_bootstrap_ci(
+            [(v.source_id, v.verdict == "violation") for v in appl], seed=seed, n_boot=n_boot
+        )
+        g.flip_ci95 = cluster_bootstrap_ci([(v.source_id, v.flipped) for v in vs], seed=seed, n_boot=n_boot)
+    else:
+        g.ci95 = wilson_interval(g.violations, g.applicable)
+        g.flip_ci95 = wilson_interval(g.flips, g.pairs)
+
+
+def _should_of(vs: Iterable[Verdict]) -> str:
+    s = {v.should for v in vs}
+    return s.pop() if len(s) == 1 else "mixed"
+
+
+def summarize(
+    results: Results,
+    *,
+    cluster: str | None = None,
+    seed: int = 0,
+    examples: int = 5,
+    n_boot: int = 2000,
+) -> Summary:
+    """Per family and per rule: pairs, applicable, flips, violations, rates and 95 % intervals.
+
+    ``cluster="source"`` replaces the Wilson interval by a seeded bootstrap over source
+    sentences (pairs made from one sentence are not independent).
+    """
+    if cluster not in (None, "none", "source"):
+        raise ValueError(f"cluster must be None or 'source', got {cluster!r}")
+    cluster = None if cluster == "none" else cluster
+    by_family: dict[str, list[Verdict]] = defaultdict(list)
+    for v in results.verdicts:
+        by_family[v.family].append(v)
+    families: dict[str, GroupStats] = {}
+    for fam, vs in by_family.items():
+        g = GroupStats(should=_should_of(vs))
+        _fill(g, vs, cluster, seed, n_boot)
+        by_rule: dict[str, list[Verdict]] = defaultdict(list)
+        by_label: dict[str, list[Verdict]] = defaultdict(list)
+        for v in vs:
+            by_rule[v.rule].append(v)
+            src_label = v.source_pred
+            by_label[src_label].append(v)
+        for rule in sorted(by_rule):
+            rg = GroupStats(should=_should_of(by_rule[rule]))
+            _fill(rg, by_rule[rule], cluster, seed, n_boot)
+            g.rules[rule] = rg
+        for lab in sorted(by_label):
+            lg = GroupStats(should=g.should)
+            _fill(lg, by_label[lab], cluster, seed, n_boot)
+            g.by_label[lab] = lg
+        viol = [v for v in vs if v.verdict == "violation"]
+        viol.sort(key=lambda v: (-_severity(v), v.id))
+        g.examples = [
+            Example(v.id, v.rule, v.should, v.source, v.variant, v.source_pred, v.variant_pred,
+                    v.source_score, v.variant_score, _severity(v))
+            for v in viol[:examples]
+        ]
+        families[fam] = g
+    accuracy = _accuracy(results)
+    return Summary(
+        families=families,
+        model=dict(results.header.get("model") or {}),
+        suite=dict(results.header.get("suite") or {}),
+        labels=dict(results.header.get("labels") or {}),
+        accuracy=accuracy,
+        interval="cluster-bootstrap" if cluster == "source" else "wilson",
+        header=dict(results.header),
+    )
+
+
+def _accuracy(results: Results) -> dict[str, Any] | None:
+    """Accuracy of the model on sources that carry a gold label (each source counted once)."""
+    seen: dict[str, bool] = {}
+    for v in results.verdicts:
+        if v.label is None or v.source_id in seen:
+            continue
+        seen[v.source_id] = v.label.strip().lower() == v.source_pred.strip().lower()
+    if not seen:
+        return None
+    correct = sum(seen.values())
+    lo, hi = wilson_interval(correct, len(seen))
+    return {"correct": correct, "sources": len(seen), "rate": correct / len(seen), "ci95": [lo, hi]}
