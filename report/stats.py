@@ -1,27 +1,45 @@
-"""Interval estimates and paired tests. Pure functions of counts; nothing here prints."""
+"""Interval estimates and paired tests. Pure functions of counts; nothing here prints.
+
+- :func:`wilson_interval`: the Wilson score interval for a binomial proportion (Wilson 1927).
+- :func:`cluster_bootstrap_ci`: a seeded percentile bootstrap of a rate that resamples whole
+  clusters (source sentences), for pairs that are not independent because several come from one
+  sentence (Efron & Tibshirani 1993, ch. 13, percentile interval; resampling clusters rather than
+  items is common practice for clustered data).
+- :func:`mcnemar_exact`: McNemar's test (McNemar 1947) in its exact form, a two-sided binomial
+  test on the discordant pairs.
+- :func:`holm`: Holm's step-down adjustment of p-values for several tests (Holm 1979).
+"""
 
 from __future__ import annotations
 
 import math
-import random
 from collections import defaultdict
-from typing import Hashable, Iterable, Sequence
+from typing import Hashable, Sequence
 
 Z95 = 1.959963984540054  # the 0.975 quantile of the standard normal
 
 
 def wilson_interval(k: int, n: int, z: float = Z95) -> tuple[float, float]:
-    """Wilson score interval (Wilson 1927) for k successes in n trials; (0, 0) when n == 0."""
-    if n <= 0:
-        return (0.0, 0.0)
-    if not 0 <= k <= n:
+    """Wilson score interval (Wilson 1927) for ``k`` successes in ``n`` trials.
+
+    With ``n == 0`` nothing is known and the interval is ``(0.0, 1.0)``.
+    """
+    if n < 0 or not 0 <= k <= max(n, 0):
         raise ValueError(f"need 0 <= k <= n, got k={k}, n={n}")
+    if n == 0:
+        return (0.0, 1.0)
     p = k / n
     z2 = z * z
     denom = 1.0 + z2 / n
     centre = (p + z2 / (2 * n)) / denom
     half = (z / denom) * math.sqrt(p * (1 - p) / n + z2 / (4 * n * n))
-    return (max(0.0, centre - half), min(1.0, centre + half))
+    lo, hi = centre - half, centre + half
+    # At k == 0 (k == n) the bound is exactly 0 (1); rounding can leave 1e-17 instead.
+    if k == 0:
+        lo = 0.0
+    if k == n:
+        hi = 1.0
+    return (max(0.0, lo), min(1.0, hi))
 
 
 def cluster_bootstrap_ci(
@@ -29,28 +47,90 @@ def cluster_bootstrap_ci(
 ) -> tuple[float, float]:
     """Percentile bootstrap interval of a rate, resampling whole clusters (source sentences).
 
-    ``items`` are ``(cluster_id, success)``; the rate is total successes / total items of the
-    resampled clusters. Seeded, so the same input gives the same interval.
+    ``items`` are ``(cluster_id, success)``; the rate of a resample is its total successes over
+    its total items (a ratio estimator, so large clusters weigh more, as in the point estimate).
+    Each of ``n_boot`` resamples draws as many clusters as there are, with replacement. Seeded
+    (numpy's PCG64), so the same input and seed give the same interval on every machine.
+    With no items the interval is ``(0.0, 1.0)``.
     """
+    import numpy as np
+
+    if not 0 < level < 1:
+        raise ValueError(f"level must lie in (0, 1), got {level}")
+    if n_boot < 1:
+        raise ValueError(f"n_boot must be at least 1, got {n_boot}")
     if not items:
-        return (0.0, 0.0)
+        return (0.0, 1.0)
     groups: dict[Hashable, list[int]] = defaultdict(lambda: [0, 0])
     for cid, ok in items:
         g = groups[cid]
         g[0] += int(bool(ok))
         g[1] += 1
-    counts = list(groups.values())
-    m = len(counts)
-    rng = random.Random(seed)
-    rates = []
-    for _ in range(n_boot):
-        k = n = 0
-        for _j in range(m):
-            a, b = counts[rng.randrange(m)]
-            k += a
-            n += b
-        rates.append(k / n)
-    rates.sort()
-    lo_i = int(math.floor((1 - level) / 2 * n_boot))
-    hi_i = min(n_boot - 1, int(math.ceil((1 + level) / 2 * n_boot)) - 1)
-    return (rates[lo_i], rates[hi_i])
+    succ = np.array([g[0] for g in groups.values()], dtype=np.float64)
+    size = np.array([g[1] for g in groups.values()], dtype=np.float64)
+    m = len(succ)
+    if succ.sum() == 0 or succ.sum() == size.sum():  # every resample has the same rate
+        r = float(succ.sum() / size.sum())
+        return (r, r)
+    rng = np.random.default_rng(seed)
+    rates = np.empty(n_boot, dtype=np.float64)
+    # Draw cluster multiplicities (a multinomial over the clusters) in chunks, so memory stays
+    # bounded at about 4 MB whatever the number of clusters.
+    chunk = max(1, min(n_boot, (1 << 19) // m))
+    probs = np.full(m, 1.0 / m)
+    for start in range(0, n_boot, chunk):
+        stop = min(n_boot, start + chunk)
+        w = rng.multinomial(m, probs, size=stop - start).astype(np.float64)
+        rates[start:stop] = (w @ succ) / (w @ size)
+    alpha = (1.0 - level) / 2.0
+    lo, hi = np.quantile(rates, [alpha, 1.0 - alpha])
+    return (float(lo), float(hi))
+
+
+def binom_cdf_half(k: int, n: int) -> float:
+    """P(X <= k) for X ~ Binomial(n, 1/2), computed exactly with integers."""
+    if k < 0:
+        return 0.0
+    if k >= n:
+        return 1.0
+    total = 0
+    c = 1
+    for i in range(k + 1):
+        if i:
+            c = c * (n - i + 1) // i
+        total += c
+    return total / (1 << n)
+
+
+def mcnemar_exact(b: int, c: int) -> float:
+    """Exact two-sided McNemar p-value (McNemar 1947) from the two discordant counts.
+
+    ``b`` and ``c`` are the pairs violated by one model only and by the other only. Under the
+    null hypothesis each discordant pair is equally likely to go either way, so the p-value is
+    ``min(1, 2 * P(X <= min(b, c)))`` with ``X ~ Binomial(b + c, 1/2)``; 1.0 when ``b + c == 0``.
+    """
+    if b < 0 or c < 0:
+        raise ValueError(f"discordant counts must be >= 0, got b={b}, c={c}")
+    n = b + c
+    if n == 0:
+        return 1.0
+    return min(1.0, 2.0 * binom_cdf_half(min(b, c), n))
+
+
+def holm(pvalues: Sequence[float]) -> list[float]:
+    """Holm's step-down adjusted p-values (Holm 1979), in the order given.
+
+    Sort the m p-values ascending; the i-th smallest (from 1) is multiplied by ``m - i + 1``,
+    the results are made non-decreasing by a running maximum and capped at 1.
+    """
+    m = len(pvalues)
+    for p in pvalues:
+        if not (0.0 <= p <= 1.0):
+            raise ValueError(f"p-values must lie in [0, 1], got {p}")
+    order = sorted(range(m), key=lambda i: pvalues[i])
+    adjusted = [0.0] * m
+    running = 0.0
+    for rank, i in enumerate(order):
+        running = max(running, min(1.0, (m - rank) * pvalues[i]))
+        adjusted[i] = running
+    return adjusted

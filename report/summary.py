@@ -2,6 +2,26 @@
 
 Nothing here renders or prints. :class:`Summary` is the one object every renderer and exporter
 reads, and :meth:`Summary.to_dict` is the ``show --json`` schema.
+
+Decisions recorded here:
+
+- ``pairs`` counts every scored pair of a group; ``applicable`` those whose expectation applies
+  (verdict not ``n/a`` and should not ``none``); ``not_applicable`` counts the ``n/a`` verdicts
+  (a neutral source under a ``flip`` expectation). ``flip_rate = flips / pairs``,
+  ``violation_rate = violations / applicable``. A family whose only rules are ``none`` has
+  ``applicable == 0`` and no violation rate to speak of.
+- ``ci95`` is the 95 % Wilson interval of the violation rate, ``flip_ci95`` that of the flip rate;
+  with ``cluster="source"`` both are a seeded percentile bootstrap over source sentences. A group
+  with no pairs to count gets ``(0.0, 1.0)``: nothing is known.
+- ``by_label`` breaks a family down by the *gold* label of the source, when the suite carries
+  gold labels (sources without one go under ``"(none)"``); it is empty otherwise.
+  ``by_prediction`` breaks it down by the model's own label on the source, always: expectations
+  are judged against that label, so this is where "it negates positives but not negatives"
+  shows.
+- ``examples`` are the most confident violations: ordered by how far the polarity score moved
+  the wrong way (:func:`severity`), ties (and label-only models, severity 0) by pair id.
+- ``accuracy`` is the model's accuracy on the sources that carry a gold label, each source
+  counted once, with its Wilson interval.
 """
 
 from __future__ import annotations
@@ -10,7 +30,7 @@ from collections import defaultdict
 from dataclasses import dataclass, field
 from typing import Any, Iterable, Sequence
 
-from pairflip.records import Results, Verdict
+from pairflip.records import PairflipError, Results, Verdict
 from pairflip.report.stats import cluster_bootstrap_ci, wilson_interval
 
 SUMMARY_VERSION = 1
@@ -48,8 +68,9 @@ class GroupStats:
     ci95: tuple[float, float] = (0.0, 0.0)
     flip_ci95: tuple[float, float] = (0.0, 0.0)
     rules: dict[str, "GroupStats"] = field(default_factory=dict)
-    by_label: dict[str, "GroupStats"] = field(default_factory=dict)
+    by_label: dict[str, "GroupStats"] = field(default_factory=dict)  # by gold source label
     examples: list[Example] = field(default_factory=list)
+    by_prediction: dict[str, "GroupStats"] = field(default_factory=dict)  # by predicted source label
 
     @property
     def flip_rate(self) -> float:
@@ -76,6 +97,8 @@ class GroupStats:
             out["rules"] = {r: g.to_dict(with_rules=False) for r, g in self.rules.items()}
             if self.by_label:
                 out["by_label"] = {lab: g.to_dict(with_rules=False) for lab, g in self.by_label.items()}
+            if self.by_prediction:
+                out["by_prediction"] = {lab: g.to_dict(with_rules=False) for lab, g in self.by_prediction.items()}
             out["examples"] = [e.to_dict() for e in self.examples]
         return out
 
@@ -108,7 +131,7 @@ class Summary:
         }
 
 
-def _severity(v: Verdict) -> float:
+def severity(v: Verdict) -> float:
     """How confident a violation is: the polarity-score movement in the wrong direction."""
     if v.source_score is None or v.variant_score is None:
         return 0.0
@@ -133,9 +156,11 @@ def _fill(g: GroupStats, vs: Sequence[Verdict], cluster: str | None, seed: int, 
     g.not_applicable = sum(1 for v in vs if v.verdict == "n/a")
     if cluster == "source":
         g.ci95 = cluster_bootstrap_ci(
-            [(v.source_id, v.verdict == "violation") for v in appl], seed=seed, n_boot=n_boot
+            [(v.source_id or v.source, v.verdict == "violation") for v in appl], seed=seed, n_boot=n_boot
         )
-        g.flip_ci95 = cluster_bootstrap_ci([(v.source_id, v.flipped) for v in vs], seed=seed, n_boot=n_boot)
+        g.flip_ci95 = cluster_bootstrap_ci(
+            [(v.source_id or v.source, v.flipped) for v in vs], seed=seed, n_boot=n_boot
+        )
     else:
         g.ci95 = wilson_interval(g.violations, g.applicable)
         g.flip_ci95 = wilson_interval(g.flips, g.pairs)
@@ -160,8 +185,11 @@ def summarize(
     sentences (pairs made from one sentence are not independent).
     """
     if cluster not in (None, "none", "source"):
-        raise ValueError(f"cluster must be None or 'source', got {cluster!r}")
+        raise PairflipError(f"--cluster {cluster!r}: expected 'source' (bootstrap over source sentences) or 'none'")
     cluster = None if cluster == "none" else cluster
+    if examples < 0:
+        raise PairflipError(f"--examples {examples}: expected a count >= 0")
+    labels = dict(results.header.get("labels") or {})
     by_family: dict[str, list[Verdict]] = defaultdict(list)
     for v in results.verdicts:
         by_family[v.family].append(v)
@@ -170,24 +198,28 @@ def summarize(
         g = GroupStats(should=_should_of(vs))
         _fill(g, vs, cluster, seed, n_boot)
         by_rule: dict[str, list[Verdict]] = defaultdict(list)
-        by_label: dict[str, list[Verdict]] = defaultdict(list)
+        by_gold: dict[str, list[Verdict]] = defaultdict(list)
+        by_pred: dict[str, list[Verdict]] = defaultdict(list)
+        has_gold = any(v.label is not None for v in vs)
         for v in vs:
             by_rule[v.rule].append(v)
-            src_label = v.source_pred
-            by_label[src_label].append(v)
+            by_pred[v.source_pred].append(v)
+            if has_gold:
+                by_gold[v.label if v.label is not None else "(none)"].append(v)
         for rule in sorted(by_rule):
             rg = GroupStats(should=_should_of(by_rule[rule]))
             _fill(rg, by_rule[rule], cluster, seed, n_boot)
             g.rules[rule] = rg
-        for lab in sorted(by_label):
-            lg = GroupStats(should=g.should)
-            _fill(lg, by_label[lab], cluster, seed, n_boot)
-            g.by_label[lab] = lg
+        for target, groups in ((g.by_label, by_gold), (g.by_prediction, by_pred)):
+            for lab in _label_order(groups, labels):
+                lg = GroupStats(should=_should_of(groups[lab]))
+                _fill(lg, groups[lab], cluster, seed, n_boot)
+                target[lab] = lg
         viol = [v for v in vs if v.verdict == "violation"]
-        viol.sort(key=lambda v: (-_severity(v), v.id))
+        viol.sort(key=lambda v: (-severity(v), v.id))
         g.examples = [
             Example(v.id, v.rule, v.should, v.source, v.variant, v.source_pred, v.variant_pred,
-                    v.source_score, v.variant_score, _severity(v))
+                    v.source_score, v.variant_score, severity(v))
             for v in viol[:examples]
         ]
         families[fam] = g
@@ -196,20 +228,39 @@ def summarize(
         families=families,
         model=dict(results.header.get("model") or {}),
         suite=dict(results.header.get("suite") or {}),
-        labels=dict(results.header.get("labels") or {}),
+        labels=labels,
         accuracy=accuracy,
         interval="cluster-bootstrap" if cluster == "source" else "wilson",
         header=dict(results.header),
     )
 
 
+def _label_order(groups: dict[str, list[Verdict]], labels: dict[str, Any]) -> list[str]:
+    """Labels from most negative to most positive when the scale is known, else sorted."""
+    order = [str(x) for x in labels.get("order") or []]
+    rank = {lab.lower(): i for i, lab in enumerate(order)}
+    return sorted(groups, key=lambda lab: (rank.get(lab.lower(), len(rank)), lab))
+
+
+def _same_label(gold: str, pred: str, labels: dict[str, Any]) -> bool:
+    """Gold and predicted label agree when their names match, case-insensitively.
+
+    Differently spelled scales ("pos" gold, "positive" predicted) are not guessed at: the label
+    column must use the model's own label names.
+    """
+    del labels
+    return gold.strip().lower() == pred.strip().lower()
+
+
 def _accuracy(results: Results) -> dict[str, Any] | None:
     """Accuracy of the model on sources that carry a gold label (each source counted once)."""
+    labels = dict(results.header.get("labels") or {})
     seen: dict[str, bool] = {}
     for v in results.verdicts:
-        if v.label is None or v.source_id in seen:
+        key = v.source_id or v.source
+        if v.label is None or key in seen:
             continue
-        seen[v.source_id] = v.label.strip().lower() == v.source_pred.strip().lower()
+        seen[key] = _same_label(v.label, v.source_pred, labels)
     if not seen:
         return None
     correct = sum(seen.values())
