@@ -1,0 +1,68 @@
+"""(a) Generation time against the floor of spaCy alone parsing the same sources.
+
+The floor is the same pipeline pairflip loads (tok2vec, tagger, parser, attribute_ruler; no
+lemmatizer, no NER) running ``nlp.pipe`` over the texts and doing nothing else. pairflip's time is
+``iter_pairs`` over the same texts with every family, writing the suite as JSON Lines. Both are
+steady state: the pipeline is loaded and warmed on 300 other texts first, and the two runs are
+interleaved twice to even out a noisy machine. Prints floor/time (target >= 0.8).
+
+    python benchmarks/generation.py [--n 13000] [--workers 1]
+"""
+
+from __future__ import annotations
+
+import argparse
+import io
+import json
+import time
+
+from _corpus import real_texts
+
+
+def main() -> None:
+    ap = argparse.ArgumentParser()
+    ap.add_argument("--n", type=int, default=0, help="texts to use (default: all, about 13,000)")
+    ap.add_argument("--workers", type=int, default=1)
+    ap.add_argument("--batch-size", type=int, default=256)
+    args = ap.parse_args()
+
+    from pairflip.perturb.build import BuildStats, iter_pairs
+    from pairflip.perturb.lexicon import load_lexicon
+    from pairflip.perturb.nlp import load_nlp
+
+    texts = real_texts()
+    warm, texts = texts[:300], texts[300:]
+    if args.n:
+        texts = texts[: args.n]
+    nlp = load_nlp()
+    lex = load_lexicon()
+    kw = {"batch_size": args.batch_size}
+    if args.workers > 1:
+        kw["n_process"] = args.workers
+    for _ in nlp.pipe(warm, **kw):
+        pass
+    list(iter_pairs(warm, nlp=nlp, lexicon=lex))
+
+    floors, ours, pairs = [], [], 0
+    for _round in range(2):
+        t0 = time.perf_counter()
+        for _doc in nlp.pipe(texts, **kw):
+            pass
+        floors.append(time.perf_counter() - t0)
+
+        stats = BuildStats()
+        out = io.StringIO()
+        t0 = time.perf_counter()
+        for p in iter_pairs(texts, nlp=nlp, lexicon=lex, stats=stats, workers=args.workers, batch_size=args.batch_size):
+            out.write(json.dumps(p.to_dict(), ensure_ascii=False) + "\n")
+        ours.append(time.perf_counter() - t0)
+        pairs = stats.pairs
+
+    floor, mine = min(floors), min(ours)
+    print(f"texts: {len(texts)}  pairs: {pairs}  workers: {args.workers}")
+    print(f"spaCy floor: {floor:.2f}s ({len(texts) / floor:.0f} texts/s)   pairflip build: {mine:.2f}s ({len(texts) / mine:.0f} texts/s)")
+    print(f"floor/time = {floor / mine:.3f}  (target >= 0.8)")
+
+
+if __name__ == "__main__":
+    main()
