@@ -51,48 +51,73 @@ def fail(message: str) -> "typer.Exit":
     return typer.Exit(2)
 
 
+def _one_line(text: str) -> str:
+    return " ".join(str(text).split())
+
+
 @contextmanager
 def _guard() -> Iterator[None]:
-    """Turn input problems into exit 2 with a message; SIGTERM behaves like Ctrl-C."""
-    old = signal.getsignal(signal.SIGTERM)
+    """Turn input problems into exit 2 with a one-line message, no traceback.
 
-    def _term(signum: int, frame: Any) -> None:
+    SIGINT (Ctrl-C) and SIGTERM stop the work the same way: the exception unwinds through the
+    atomic writers (which delete their temp files), one line is printed, and the exit code is
+    128 + the signal number (130, 143), as shells do. A second signal during that clean-up is
+    ignored so the clean-up always finishes.
+    """
+    caught: list[int] = []
+    watched = (signal.SIGINT, signal.SIGTERM)
+
+    def _on_signal(signum: int, frame: Any) -> None:
+        caught.append(signum)
+        for s in watched:  # one-shot: let the clean-up run to its end
+            signal.signal(s, signal.SIG_IGN)
         raise KeyboardInterrupt
 
+    old: dict[int, Any] = {}
     try:
-        signal.signal(signal.SIGTERM, _term)
-    except ValueError:  # not the main thread
-        old = None
+        for s in watched:
+            old[s] = signal.getsignal(s)
+            signal.signal(s, _on_signal)
+    except ValueError:  # not the main thread: leave the handlers alone
+        old = {}
     try:
         yield
     except PairflipError as err:
         if DEBUG:
             raise
-        raise fail(str(err)) from None
+        raise fail(_one_line(str(err))) from None
     except KeyboardInterrupt:
-        _err_console().print("pairflip: interrupted; no partial output was written (finished predictions stay in --cache)")
-        raise typer.Exit(2) from None
+        signum = caught[0] if caught else signal.SIGINT
+        name = signal.Signals(signum).name
+        _err_console().print(
+            f"pairflip: interrupted ({name}); no partial output file was left behind",
+            markup=False, soft_wrap=True,
+        )
+        raise typer.Exit(128 + int(signum)) from None
     except (typer.Exit, typer.Abort):
         raise
     except Exception as err:  # a bug or an unforeseen input: one line, no traceback unless --debug
         if DEBUG:
             raise
-        raise fail(f"{type(err).__name__}: {err} (rerun with --debug for the traceback)") from None
+        raise fail(_one_line(f"{type(err).__name__}: {err} (rerun with --debug for the traceback)")) from None
     finally:
-        if old is not None:
-            signal.signal(signal.SIGTERM, old)
+        for s, h in old.items():
+            signal.signal(s, h if h is not None else signal.SIG_DFL)
 
 
 def _check_output(out: Path, inputs: list[Path], force: bool) -> None:
     for i in inputs:
         try:
-            if out.resolve() == i.resolve():
-                raise PairflipError(f"-o {out}: the output file is also an input; choose another path")
+            same = out.resolve() == i.resolve() or (out.exists() and i.exists() and os.path.samefile(out, i))
         except OSError:
-            pass
+            same = False
+        if same:
+            raise PairflipError(f"-o {out}: the output file is also an input ({i}); choose another output path")
+    if out.is_dir():
+        raise PairflipError(f"-o {out}: is a folder; expected the path of the file to write")
     if out.exists() and not force:
         raise PairflipError(f"-o {out}: the file already exists; pass --force to overwrite it")
-    if out.parent and not out.parent.exists():
+    if not out.parent.is_dir():
         raise PairflipError(f"-o {out}: folder {out.parent} does not exist")
 
 
@@ -155,16 +180,22 @@ def build_to_file(corpus: Path, output: Path, *, families: Any, force: bool, **k
     _check_output(output, [corpus], force)
     from pairflip.perturb.build import resolve_rules
 
-    resolve_rules(families)  # fail on an unknown family before any parsing
-    texts = read_corpus(
-        corpus, text_column=kw["text_column"], label_column=kw["label_column"],
-        text_field=kw["text_field"], label_field=kw["label_field"], encoding=kw["encoding"],
-    )
-    first = next(texts)  # raises for an empty corpus before anything is loaded
+    try:
+        resolve_rules(families)  # fail on an unknown family before any parsing
+    except PairflipError as err:
+        raise PairflipError(f"--families: {err}") from None
 
-    def all_texts() -> Iterator[Any]:
-        yield first
-        yield from texts
+    def read() -> Iterator[Any]:
+        return read_corpus(
+            corpus, text_column=kw["text_column"], label_column=kw["label_column"],
+            text_field=kw["text_field"], label_field=kw["label_field"], encoding=kw["encoding"],
+        )
+
+    # A first pass reads the whole corpus without parsing: every input error (bad line 19,000,
+    # empty corpus, wrong column) shows up in a second, before spaCy loads, and the progress bar
+    # knows its total. The second pass streams the texts to the parser.
+    total = sum(1 for _ in read())
+    all_texts = read
 
     nlp = load_nlp(kw["spacy_model"])
     lex = load_lexicon(kw["lexicon"])
@@ -175,7 +206,7 @@ def build_to_file(corpus: Path, output: Path, *, families: Any, force: bool, **k
         pairs = iter_pairs(
             all_texts(), families=families, seed=kw["seed"], nlp=nlp, lexicon=lex, workers=kw["workers"],
             max_per_rule=kw["max_per_rule"], recheck=kw["recheck"], stats=stats,
-            on_source=(lambda n: bar.update(n)) if bar else None,
+            on_source=(lambda n: bar.update(n, total)) if bar else None,
         )
         write_suite_stream(header, pairs, fh)
     return stats
@@ -250,7 +281,7 @@ def score_to_file(suite_path: Path, model: str, output: Path, *, force: bool, ca
 @app.command()
 def show(
     results: List[Path] = typer.Argument(..., help="One or more results files (several: side by side)."),
-    json_out: Optional[Path] = typer.Option(None, "--json", help="Write the summary as JSON."),
+    json_out: Optional[Path] = typer.Option(None, "--json", help='Write the summary as JSON (several files: {"version": 1, "kind": "pairflip-summaries", "models": [...]}).'),
     junit: Optional[Path] = typer.Option(None, "--junit", help="Write JUnit XML (a testsuite per family)."),
     markdown: Optional[Path] = typer.Option(None, "--markdown", help="Write a Markdown table (pull-request comment)."),
     html: Optional[Path] = typer.Option(None, "--html", help="Write one self-contained HTML page."),
@@ -276,10 +307,12 @@ def show(
         from pairflip.report import render
 
         render(summaries, console=_out_console(), examples=examples, families=family or None, gate=gate_outcomes)
-        _export(summaries[0] if len(summaries) == 1 else summaries, json_out, junit, markdown, html, gate_outcomes)
+        _export(summaries[0] if len(summaries) == 1 else summaries, json_out, junit, markdown, html, gate_outcomes,
+                examples=examples)
 
 
-def _export(summary: Any, json_out: Path | None, junit: Path | None, markdown: Path | None, html: Path | None, gate: Any) -> None:
+def _export(summary: Any, json_out: Path | None, junit: Path | None, markdown: Path | None, html: Path | None, gate: Any,
+            examples: int = 3) -> None:
     from pairflip.files import atomic_writer
 
     if not any((json_out, junit, markdown, html)):
@@ -289,7 +322,7 @@ def _export(summary: Any, json_out: Path | None, junit: Path | None, markdown: P
     for path, fn in ((json_out, export.to_json), (junit, export.to_junit), (markdown, export.to_markdown), (html, export.to_html)):
         if path is None:
             continue
-        text = fn(summary, gate=gate)
+        text = fn(summary, gate=gate, examples=examples) if fn in (export.to_markdown, export.to_html) else fn(summary, gate=gate)
         with atomic_writer(path) as fh:
             fh.write(text)
         _err_console().print(f"wrote {path}", markup=False)
@@ -303,21 +336,26 @@ def gate(
     results: Path = typer.Argument(..., help="A results file."),
     limit: List[str] = typer.Option([], "--limit", "-l", help='A limit such as "negation.violation <= 0.10" or "reorder/shuffle.flip < 20%". Repeatable.'),
     limits_file: Optional[Path] = typer.Option(None, "--limits", help="A TOML file with [tool.pairflip.gate] limits (or a pyproject.toml)."),
-    on: str = typer.Option("point", "--on", help="Judge the point estimate, or the upper/lower bound of the 95% interval."),
+    on: Optional[str] = typer.Option(None, "--on", help="Judge the point estimate, or the upper/lower bound of the 95% interval: point (default), upper or lower."),
     baseline: Optional[Path] = typer.Option(None, "--baseline", help="Results of the last released model: also fail on a significant regression."),
-    alpha: float = typer.Option(0.05, "--alpha", help="Significance level for --baseline (Holm-adjusted McNemar)."),
+    alpha: Optional[float] = typer.Option(None, "--alpha", help="Significance level for --baseline (Holm-adjusted McNemar; default 0.05)."),
     cluster: Optional[str] = typer.Option(None, "--cluster", help="'source': bootstrap intervals over source sentences."),
+    seed: int = typer.Option(0, "--seed", help="Seed of the cluster bootstrap."),
 ) -> None:
-    """Exit 1 when a limit is crossed (or the model regressed against --baseline)."""
+    """Exit 1 when a limit is crossed (or the model regressed against --baseline).
+
+    Without --limit and --limits, the limits come from [tool.pairflip.gate] in ./pyproject.toml.
+    """
     with _guard():
         from pairflip.files import read_results
-        from pairflip.report import summarize
-        from pairflip.report.gate import run_gate
+        from pairflip.report.gate import default_limits_file, run_gate
 
+        if not limit and limits_file is None:
+            limits_file = default_limits_file(Path.cwd())
         res = read_results(results)
         old = read_results(baseline) if baseline else None
-        outcome = run_gate(res, limit, limits_file=limits_file, on=on, baseline=old, alpha=alpha, cluster=cluster)
-        from pairflip.report.render import render_gate
+        outcome = run_gate(res, limit, limits_file=limits_file, on=on, baseline=old, alpha=alpha, cluster=cluster, seed=seed)
+        from pairflip.report.gate_view import render_gate
 
         render_gate(outcome, _out_console())
         if not outcome.passed:
@@ -338,7 +376,7 @@ def compare(
     with _guard():
         from pairflip.files import atomic_writer, read_results
         from pairflip.report.compare import compare as _compare
-        from pairflip.report.render import render_comparison
+        from pairflip.report.gate_view import render_comparison
 
         comp = _compare(read_results(old), read_results(new))
         render_comparison(comp, _out_console(), examples=examples)
@@ -375,18 +413,24 @@ def audit(
     timeout: float = typer.Option(30.0, "--timeout"),
     retries: int = typer.Option(3, "--retries"),
     limit: List[str] = typer.Option([], "--limit", "-l", help="Gate limits (see `gate`)."),
+    limits_file: Optional[Path] = typer.Option(None, "--limits", help="A TOML file with [tool.pairflip.gate] limits (or a pyproject.toml)."),
+    on: Optional[str] = typer.Option(None, "--on", help="Gate on the point estimate, or the upper/lower bound of the 95% interval."),
     examples: int = typer.Option(3, "--examples"),
     force: bool = typer.Option(False, "--force", help="Overwrite files in --out-dir."),
 ) -> None:
-    """build + score + show (+ gate when --limit is given) in one go."""
+    """build + score + show (+ gate when --limit or --limits is given) in one go."""
     with _guard():
-        out_dir.mkdir(parents=True, exist_ok=True)
-        suite_path, results_path = out_dir / "suite.jsonl", out_dir / "results.jsonl"
-        if limit:
-            from pairflip.report.gate import parse_limit
+        if limit or limits_file is not None:
+            from pairflip.report.gate import ON, parse_limit, read_limits_file
 
             for x in limit:
                 parse_limit(x)  # fail on a malformed limit before the long work
+            if limits_file is not None:
+                read_limits_file(limits_file)
+            if on is not None and on not in ON:
+                raise PairflipError(f"--on {on!r}: expected point, upper or lower")
+        out_dir.mkdir(parents=True, exist_ok=True)
+        suite_path, results_path = out_dir / "suite.jsonl", out_dir / "results.jsonl"
         stats = build_to_file(
             corpus, suite_path, families=families, text_column=text_column, label_column=label_column,
             text_field=text_field, label_field=label_field, encoding=encoding, seed=seed, workers=workers,
@@ -403,13 +447,13 @@ def audit(
 
         summary = summarize(results, examples=max(examples, 5))
         outcome = None
-        if limit:
+        if limit or limits_file is not None:
             from pairflip.report.gate import run_gate
 
-            outcome = run_gate(results, limit)
+            outcome = run_gate(results, limit, limits_file=limits_file, on=on)
         render([summary], console=_out_console(), examples=examples)
         if outcome is not None:
-            from pairflip.report.render import render_gate
+            from pairflip.report.gate_view import render_gate
 
             render_gate(outcome, _out_console())
             if not outcome.passed:

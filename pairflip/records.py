@@ -130,12 +130,24 @@ class Suite:
         return len(self.pairs)
 
     def sha256(self) -> str:
-        """Hash of the pairs' content (not of the header's date), so a rebuilt suite matches."""
-        h = hashlib.sha256()
-        for p in self.pairs:
-            h.update(json.dumps(p.to_dict(), sort_keys=True, ensure_ascii=False).encode("utf-8"))
-            h.update(b"\n")
-        return h.hexdigest()
+        """Hash of the pairs' content (not of the header's date), so a rebuilt suite matches.
+
+        Pair ids are already content hashes of rule, source and variant; the expectation and
+        family are added so a changed expectation changes the suite hash.
+        """
+        return suite_sha256(self.pairs)
+
+
+def suite_sha256(pairs: Iterable["Pair"]) -> str:
+    h = hashlib.sha256()
+    for p in pairs:
+        h.update(f"{p.id}\t{p.family}\t{p.should}\n".encode("utf-8"))
+    return h.hexdigest()
+
+
+def text_digest(text: str) -> bytes:
+    """A short digest of a text, for de-duplicating huge corpora without keeping the texts."""
+    return hashlib.blake2b(text.encode("utf-8"), digest_size=12).digest()
 
 
 @dataclass(frozen=True)

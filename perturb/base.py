@@ -11,6 +11,7 @@ from __future__ import annotations
 
 import random
 import re
+from functools import lru_cache
 from dataclasses import dataclass, field
 from typing import TYPE_CHECKING, Any, Callable, Iterator
 
@@ -66,11 +67,29 @@ def lemma(tok: "Token") -> str:
     """The token's lemma; from lemminflect when the pipeline runs without a lemmatizer."""
     if tok.lemma_:
         return tok.lemma_
+    return _lemma(tok.text, tok.tag_, tok.pos_)
+
+
+_UPOS = {"VERB": "VERB", "AUX": "AUX", "ADJ": "ADJ", "ADV": "ADV", "NOUN": "NOUN", "PROPN": "PROPN"}
+
+
+@lru_cache(maxsize=100_000)
+def _lemma(text: str, tag: str, pos: str) -> str:
+    if text == "I":
+        return "I"
+    low = text.lower()
+    if pos == "PRON" or pos not in _UPOS:
+        return {"n't": "not", "'m": "be", "'re": "be", "'s": "be" if pos == "AUX" else "'s",
+                "'ve": "have", "'ll": "will", "'d": "would", "wo": "will", "ca": "can"}.get(low, low)
     from lemminflect import getLemma
 
-    upos = {"VERB": "VERB", "AUX": "AUX", "ADJ": "ADJ", "ADV": "ADV", "NOUN": "NOUN"}.get(tok.pos_, "VERB")
-    cands = getLemma(tok.text, upos=upos) if tok.text else ()
-    return (cands[0] if cands else tok.text).lower() if tok.text != "I" else "I"
+    if pos == "AUX":
+        special = {"'m": "be", "'re": "be", "'s": "be", "'ve": "have", "'ll": "will", "'d": "would",
+                   "wo": "will", "ca": "can", "sha": "shall", "n't": "not"}
+        if low in special:
+            return special[low]
+    cands = getLemma(low, upos=_UPOS[pos])
+    return cands[0] if cands else low
 
 
 def match_case(new: str, old: str) -> str:
@@ -104,7 +123,12 @@ def apply_edits(doc: "Doc", edits: tuple[TokenEdit, ...] | list[TokenEdit]) -> t
         if e.start == e.end:  # insertion
             if e.start < len(doc):
                 pos = doc[e.start].idx
-                spans.append((pos, pos, e.text + " "))
+                tok = doc[e.start]
+                if e.start > 0 and tok.text[:1] in PUNCT_CLOSE and not doc[e.start - 1].whitespace_:
+                    # before closing punctuation: "quickly." -> "quickly in the morning."
+                    spans.append((pos, pos, " " + e.text))
+                else:
+                    spans.append((pos, pos, e.text + " "))
             else:
                 last = doc[-1]
                 pos = last.idx + len(last.text)
@@ -186,14 +210,41 @@ def validate(doc: "Doc", cand: Candidate, variant: str) -> str | None:
     for a, b in zip(vw, vw[1:]):
         if a == b and a.isalpha() and f"{a} {b}" not in " ".join(sw):
             return "repeated word"
-    if cand.rule.startswith("reorder/") and sorted(vw) != sorted(sw):
+    if cand.rule.startswith("reorder/") and sorted(_article_as_a(vw)) != sorted(_article_as_a(sw)):
+        # "a"/"an" count as one word: a reorder may fix the article ("an easy and quick" -> "a quick and easy")
         return "reorder changed the words"
+    want = _negation_change(cand)
+    if want is not None:
+        delta = _neg_count(variant) - _neg_count(source)
+        if delta != want:
+            return f"negation count changed by {delta:+d}, expected {want:+d}"
     for m in _DO_PLUS.finditer(variant):
         if m.group(0) in source:
             continue
         verb = m.group(1).lower()
         if not _is_base_form(verb):
             return "agreement: do-support needs the base form"
+    return None
+
+
+def _article_as_a(ws: list[str]) -> list[str]:
+    return ["a" if w == "an" else w for w in ws]
+
+
+def _neg_count(text: str) -> int:
+    return sum(1 for w in words(text) if w.replace("’", "'").endswith("n't") or w in NEGATORS)
+
+
+def _negation_change(cand: Candidate) -> int | None:
+    """How many negations the edit must add (+) or remove (-): double negation adds exactly one;
+    a negation candidate states its own counts in ``meta`` ("inserted", "removed")."""
+    if cand.rule.startswith("double-negation/"):
+        return 1
+    if cand.rule.startswith("negation/") and "inserted" in cand.meta:
+        ins, rem = int(cand.meta.get("inserted", 0)), int(cand.meta.get("removed", 0))
+        if ins and rem:
+            return None  # toggled both ways: no fixed count
+        return ins - rem
     return None
 
 

@@ -10,7 +10,7 @@ from typing import Any, Callable, Iterable, Iterator, Sequence
 from pairflip.perturb.base import Candidate, Context, apply_edits, validate
 from pairflip.perturb.lexicon import Lexicon, load_lexicon
 from pairflip.perturb.nlp import load_nlp, model_name
-from pairflip.records import Pair, PairflipError, SourceText, Suite, stable_id
+from pairflip.records import Pair, PairflipError, SourceText, Suite, stable_id, text_digest
 
 GENERATOR_VERSION = 1
 
@@ -79,7 +79,7 @@ class BuildStats:
 
 
 def _as_sources(texts: Iterable[Any]) -> Iterator[SourceText]:
-    seen: set[str] = set()
+    seen: set[bytes] = set()
     for i, t in enumerate(texts):
         if isinstance(t, SourceText):
             st = t
@@ -89,9 +89,12 @@ def _as_sources(texts: Iterable[Any]) -> Iterator[SourceText]:
             st = SourceText(text=str(t[0]).strip(), label=None if t[1] is None else str(t[1]), where=f"text {i}")
         else:
             raise PairflipError(f"text {i}: expected a string or a (text, label) pair, got {type(t).__name__}")
-        if not st.text or st.text in seen:
+        if not st.text:
             continue
-        seen.add(st.text)
+        key = text_digest(st.text)
+        if key in seen:
+            continue
+        seen.add(key)
         yield st
 
 

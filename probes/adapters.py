@@ -1,101 +1,158 @@
 """Model adapters: anything that labels a list of texts becomes a :class:`Model`.
 
-SPEC forms: ``path/model.joblib`` (a fitted scikit-learn-like object), ``package.module:name``
-(a callable ``list[str] -> labels`` or an object with ``predict``), ``http://host:port/path``,
-``cmd:COMMAND``. Python objects can be passed directly to :func:`as_model`.
+SPEC forms (see :func:`load_model`):
+
+- ``path/model.joblib`` (also ``.pkl``, ``.pickle``): a fitted scikit-learn-like object with
+  ``predict`` and, optionally, ``predict_proba`` and ``classes_`` (:mod:`.file_model`).
+  Loading it unpickles it, which runs code stored in the file: only name files you trust.
+- ``package.module:name``: ``name`` is a callable ``list[str] -> outputs``, an object with
+  ``predict`` (and maybe ``predict_proba`` / ``classes_``), or a class, instantiated without
+  arguments. An output is a label, or a dict with ``label``, ``probabilities`` (label -> p) and/or
+  ``score`` (a polarity score in [-1, 1]). The current folder is importable, as with ``python -m``.
+- ``http://host:port/path``: a JSON endpoint (:mod:`.http_model`).
+- ``cmd:COMMAND``: a process speaking JSON Lines on stdin/stdout (:mod:`.command_model`).
+
+Python objects can be passed directly to :func:`as_model` (``pairflip.score(suite, model)``).
+
+Every model has a ``fingerprint()``: the prediction cache key. It changes when the model does
+(file bytes for a joblib file, module source and pickled state for a Python object, the command
+and its program and script for ``cmd:``); an HTTP model is fingerprinted by its URL only.
 """
 
 from __future__ import annotations
 
 import hashlib
 import importlib
-import math
-from typing import Any, Sequence
+import inspect
+import os
+import pickle
+import sys
+from typing import Any
 
+from pairflip.probes.batching import ModelError, build_predictions, prediction_from_item
 from pairflip.records import PairflipError, Prediction
+
+SPEC_FORMS = "path/model.joblib, package.module:name, http://host:port/path or cmd:COMMAND"
+FILE_SUFFIXES = (".joblib", ".pkl", ".pickle")
 
 
 class Model:
-    """The protocol every adapter follows."""
+    """The protocol every adapter follows: ``predict(texts) -> [Prediction]``, one per text."""
 
     spec: str = "model"
     name: str = "model"
+    kind: str = "model"
     classes: list[str] | None = None
+    parallel: bool = False  # may several batches run at once (threads)?
 
     def predict(self, texts: list[str]) -> list[Prediction]:  # pragma: no cover - interface
         raise NotImplementedError
 
     def fingerprint(self) -> str:
-        return hashlib.sha256(self.spec.encode()).hexdigest()[:16]
+        return hashlib.sha256(self.spec.encode("utf-8")).hexdigest()
 
     def describe(self) -> dict[str, Any]:
-        return {"name": self.name, "spec": self.spec, "fingerprint": self.fingerprint()}
+        out: dict[str, Any] = {"name": self.name, "spec": self.spec, "kind": self.kind, "fingerprint": self.fingerprint()}
+        if self.classes:
+            out["classes"] = list(self.classes)
+        return out
 
+    def close(self) -> None:
+        """Release processes or connections; a no-op for in-process models."""
 
-def _label(x: Any) -> str:
-    from pairflip.labels import _norm
+    def __enter__(self) -> "Model":
+        return self
 
-    if x is None or (isinstance(x, float) and math.isnan(x)):
-        raise PairflipError("output is None/NaN, expected a label")
-    return _norm(x)
+    def __exit__(self, *exc: Any) -> None:
+        self.close()
 
 
 class PythonModel(Model):
-    """A callable ``list[str] -> labels`` or an object with ``predict`` (and maybe ``predict_proba``)."""
+    """An in-process model: a callable ``list[str] -> outputs`` or an object with ``predict``.
 
-    def __init__(self, obj: Any, spec: str | None = None, name: str | None = None) -> None:
+    With ``predict_proba`` and ``classes_`` the labels still come from ``predict`` (they can
+    disagree with the most probable class, for example in an SVM with Platt scaling) and the
+    probabilities from ``predict_proba``.
+    """
+
+    kind = "python"
+
+    def __init__(self, obj: Any, spec: str | None = None, name: str | None = None, *, fingerprint: str | None = None) -> None:
+        if not (callable(obj) or hasattr(obj, "predict")):
+            raise PairflipError(
+                f"model {spec or _describe_obj(obj)}: a {type(obj).__name__} is neither callable nor has a predict method"
+            )
         self.obj = obj
         self.spec = spec or _describe_obj(obj)
         self.name = name or self.spec
-        classes = getattr(obj, "classes_", None)
-        self.classes = [_label(c) for c in classes] if classes is not None else None
-        self._fp: str | None = None
+        raw_classes = getattr(obj, "classes_", None)
+        self.classes = None
+        if raw_classes is not None and hasattr(obj, "predict"):
+            try:
+                from pairflip.probes.batching import as_label
+
+                self.classes = [as_label(c, i) for i, c in enumerate(list(raw_classes))]
+            except (ModelError, TypeError) as err:
+                raise PairflipError(f"model {self.spec}: classes_ {raw_classes!r} are not labels ({err})") from None
+        self._fp = fingerprint
 
     def predict(self, texts: list[str]) -> list[Prediction]:
         obj = self.obj
-        if hasattr(obj, "predict_proba") and self.classes:
-            proba = obj.predict_proba(texts)
-            out = []
-            for row in proba:
-                probs = {c: float(p) for c, p in zip(self.classes, row)}
-                best = max(probs, key=probs.__getitem__)
-                out.append(Prediction(label=best, probabilities=probs))
-            return out
         if hasattr(obj, "predict"):
-            raw = obj.predict(texts)
-        elif callable(obj):
-            raw = obj(texts)
+            labels = obj.predict(texts)
+            if _is_sequence(labels) and len(labels) == len(texts) and labels_are_items(labels):
+                proba = None
+                if self.classes and hasattr(obj, "predict_proba"):
+                    proba = obj.predict_proba(texts)
+                    shape = getattr(proba, "shape", None)
+                    if shape is not None and len(shape) != 2:
+                        raise ModelError(f"predict_proba returned an array of shape {shape}, expected (texts, classes)")
+                return build_predictions(len(texts), labels=list(labels), probabilities=proba, classes=self.classes)
+            raw = labels
         else:
-            raise PairflipError(f"model {self.spec}: not callable and has no predict method")
-        return [_to_prediction(x, self.spec, i) for i, x in enumerate(list(raw))]
+            raw = obj(texts)
+        if not _is_sequence(raw):
+            raise ModelError(f"the model returned {type(raw).__name__}, expected a list with one output per text")
+        raw = list(raw)
+        if len(raw) != len(texts):
+            raise ModelError(f"{len(texts)} texts got {len(raw)} outputs; expected one output per text")
+        return [prediction_from_item(x, i) for i, x in enumerate(raw)]
 
     def fingerprint(self) -> str:
         if self._fp is None:
-            h = hashlib.sha256(self.spec.encode())
-            try:
-                import pickle
-
-                h.update(pickle.dumps(self.obj))
-            except Exception:
-                h.update(repr(self.obj).encode())
-            self._fp = h.hexdigest()[:16]
+            self._fp = _object_fingerprint(self.obj, self.spec)
         return self._fp
 
 
-def _to_prediction(x: Any, spec: str, i: int) -> Prediction:
-    if isinstance(x, Prediction):
-        return x
-    if isinstance(x, dict):
-        if "probabilities" in x:
-            probs = {_label(k): float(v) for k, v in x["probabilities"].items()}
-            lab = _label(x.get("label", max(probs, key=probs.__getitem__)))
-            return Prediction(label=lab, probabilities=probs)
-        if "label" in x:
-            return Prediction(label=_label(x["label"]), score=x.get("score"))
+def labels_are_items(xs: Any) -> bool:
+    """``predict`` gave plain labels (not dicts with probabilities)."""
     try:
-        return Prediction(label=_label(x))
-    except PairflipError as err:
-        raise PairflipError(f"model {spec}: output {i}: {err}") from None
+        first = xs[0] if len(xs) else None
+    except (TypeError, IndexError, KeyError):
+        return False
+    return not isinstance(first, (dict, Prediction))
+
+
+def _is_sequence(x: Any) -> bool:
+    return hasattr(x, "__len__") and hasattr(x, "__getitem__") and not isinstance(x, (str, bytes, dict))
+
+
+def _object_fingerprint(obj: Any, spec: str) -> str:
+    """Spec + the source file of the object's module + the object's pickled state, when any."""
+    h = hashlib.sha256(spec.encode("utf-8"))
+    mod = sys.modules.get(getattr(obj, "__module__", None) or type(obj).__module__)
+    try:
+        src = inspect.getsourcefile(mod) if mod is not None else None
+    except TypeError:
+        src = None
+    if src and os.path.isfile(src):
+        with open(src, "rb") as fh:
+            h.update(fh.read())
+    try:
+        h.update(pickle.dumps(obj, protocol=4))
+    except Exception:  # lambdas, closures: the source file and spec have to do
+        h.update(type(obj).__qualname__.encode())
+    return h.hexdigest()
 
 
 def _describe_obj(obj: Any) -> str:
@@ -104,45 +161,72 @@ def _describe_obj(obj: Any) -> str:
     return f"{mod}:{name}"
 
 
-def load_model(spec: str, **options: Any) -> Model:
-    """Turn a SPEC string into a model (see the module docstring for the forms)."""
+def import_model(spec: str) -> PythonModel:
+    """``package.module:name`` -> a PythonModel; every import problem names the SPEC."""
+    mod_name, _, attr = spec.partition(":")
+    if not mod_name or not attr or not all(p.isidentifier() for p in mod_name.split(".") + attr.split(".")):
+        raise PairflipError(f"--model {spec}: expected package.module:name ({SPEC_FORMS})")
+    cwd = os.getcwd()
+    if cwd not in sys.path and "" not in sys.path:
+        sys.path.append(cwd)
+    try:
+        mod = importlib.import_module(mod_name)
+    except ModuleNotFoundError as err:
+        raise PairflipError(f"--model {spec}: cannot import module {mod_name!r} ({err})") from None
+    except Exception as err:
+        raise PairflipError(f"--model {spec}: importing module {mod_name!r} raised {type(err).__name__}: {err}") from None
+    obj: Any = mod
+    for part in attr.split("."):
+        if not hasattr(obj, part):
+            raise PairflipError(f"--model {spec}: module {mod_name!r} has no attribute {attr!r}")
+        obj = getattr(obj, part)
+    if isinstance(obj, type):
+        try:
+            obj = obj()
+        except Exception as err:
+            raise PairflipError(
+                f"--model {spec}: {attr} is a class and making one without arguments raised {type(err).__name__}: {err}"
+            ) from None
+    if not (callable(obj) or hasattr(obj, "predict")):
+        raise PairflipError(
+            f"--model {spec}: {attr} is a {type(obj).__name__}, expected a callable list[str] -> labels "
+            f"or an object with a predict method"
+        )
+    return PythonModel(obj, spec=spec)
+
+
+def load_model(spec: str, *, timeout: float = 30.0, retries: int = 3, **options: Any) -> Model:
+    """Turn a SPEC string into a model (see the module docstring for the forms).
+
+    ``timeout`` (seconds per batch) and ``retries`` apply to HTTP models; ``timeout`` also to
+    ``cmd:`` models. Other ``options`` go to the HTTP or command adapter.
+    """
+    if not isinstance(spec, str) or not spec.strip():
+        raise PairflipError(f"--model {spec!r}: empty; expected {SPEC_FORMS}")
+    spec = spec.strip()
     if spec.startswith(("http://", "https://")):
         from pairflip.probes.http_model import HttpModel
 
-        return HttpModel(spec, **options)
+        return HttpModel(spec, timeout=timeout, retries=retries, **options)
     if spec.startswith("cmd:"):
         from pairflip.probes.command_model import CommandModel
 
-        return CommandModel(spec, **options)
-    if spec.endswith((".joblib", ".pkl", ".pickle")):
+        return CommandModel(spec, timeout=timeout, **options)
+    if spec.lower().endswith(FILE_SUFFIXES):
         from pairflip.probes.file_model import load_file_model
 
         return load_file_model(spec)
-    if ":" in spec:
-        mod_name, _, attr = spec.partition(":")
-        try:
-            mod = importlib.import_module(mod_name)
-        except ImportError as err:
-            raise PairflipError(f"--model {spec}: cannot import module {mod_name!r} ({err})") from None
-        obj = mod
-        for part in attr.split("."):
-            if not hasattr(obj, part):
-                raise PairflipError(f"--model {spec}: module {mod_name!r} has no attribute {attr!r}")
-            obj = getattr(obj, part)
-        if isinstance(obj, type):
-            obj = obj()
-        return PythonModel(obj, spec=spec)
-    raise PairflipError(
-        f"--model {spec!r}: not a model SPEC; expected path/model.joblib, package.module:name, "
-        f"http://host:port/path or cmd:COMMAND"
-    )
+    if ":" in spec and not os.path.exists(spec):
+        return import_model(spec)
+    raise PairflipError(f"--model {spec!r}: not a model SPEC; expected {SPEC_FORMS}")
 
 
 def as_model(model: Any, **options: Any) -> Model:
+    """A Model from a Model, a SPEC string, a callable or an object with ``predict``."""
     if isinstance(model, Model):
         return model
-    if isinstance(model, str):
-        return load_model(model, **options)
+    if isinstance(model, (str, os.PathLike)):
+        return load_model(os.fspath(model), **options)
     if callable(model) or hasattr(model, "predict"):
         return PythonModel(model)
-    raise PairflipError(f"expected a model (callable, object with predict, or SPEC), got {type(model).__name__}")
+    raise PairflipError(f"expected a model (callable, object with predict, or a SPEC string), got {type(model).__name__}")

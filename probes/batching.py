@@ -1,54 +1,243 @@
-"""Sending batches to a model, optionally several in flight at once."""
+"""Sending batches to a model, several in flight at once if asked, and checking what comes back.
+
+Every adapter returns one :class:`~pairflip.records.Prediction` per text. :func:`run_batches`
+checks each batch's outputs (count, missing or NaN labels, probabilities that are not a
+distribution, scores outside [-1, 1]) and turns any failure into a
+:class:`~pairflip.records.PairflipError` naming the model SPEC and the batch, so the user knows
+what failed and where. Batches are yielded as they finish; the caller writes each one to the
+prediction cache before the next is yielded, so a failure later on loses nothing finished.
+"""
 
 from __future__ import annotations
 
-from concurrent.futures import ThreadPoolExecutor
-from typing import Any, Iterator, Sequence
+import math
+from concurrent.futures import FIRST_COMPLETED, Future, ThreadPoolExecutor, wait
+from typing import Any, Iterator, Mapping, Sequence
 
+from pairflip.labels import PROBABILITY_TOLERANCE, normalise_label
 from pairflip.records import PairflipError, Prediction
 
 
-def check_outputs(model: Any, batch: Sequence[str], out: Sequence[Prediction], index: int) -> list[Prediction]:
+class ModelError(PairflipError):
+    """A model failed or answered badly. Adapters raise it without context; :func:`run_batches`
+    adds the model SPEC and the batch."""
+
+
+# --------------------------------------------------------------------------- raw output -> Prediction
+
+
+def as_label(x: Any, i: int) -> str:
+    """One output label as a string; None, NaN, empty strings and sequences are refused."""
+    if x is None or (isinstance(x, float) and math.isnan(x)) or (_numpy_nan(x)):
+        raise ModelError(f"output {i} is {x!r}, expected a label")
+    if isinstance(x, (list, tuple, dict, set)) or (hasattr(x, "shape") and getattr(x, "shape", ()) != ()):
+        raise ModelError(f"output {i} is {type(x).__name__} {str(x)[:60]}, expected one label per text")
+    lab = normalise_label(x)
+    if not lab:
+        raise ModelError(f"output {i} is an empty label")
+    return lab
+
+
+def _numpy_nan(x: Any) -> bool:
+    if type(x).__module__ != "numpy" or getattr(x, "shape", None) not in ((), None):
+        return False
+    try:
+        return math.isnan(float(x))
+    except (TypeError, ValueError):
+        return False
+
+
+def _float(x: Any, what: str) -> float:
+    if isinstance(x, bool):
+        raise ModelError(f"{what} is {x!r}, expected a number")
+    try:
+        f = float(x)
+    except (TypeError, ValueError):
+        raise ModelError(f"{what} is {x!r}, expected a number") from None
+    if not math.isfinite(f):
+        raise ModelError(f"{what} is {x!r}, expected a finite number")
+    return f
+
+
+def build_predictions(
+    n: int,
+    *,
+    labels: Sequence[Any] | None = None,
+    probabilities: Sequence[Sequence[Any]] | None = None,
+    classes: Sequence[Any] | None = None,
+    scores: Sequence[Any] | None = None,
+) -> list[Prediction]:
+    """Predictions from column-wise outputs (a list of labels, a probability matrix over
+    ``classes``, a list of scalar scores), checking every length against ``n`` texts.
+
+    Without labels, each label is the most probable class.
+    """
+    if labels is None and probabilities is None:
+        raise ModelError("the output holds neither labels nor probabilities")
+    cols: dict[str, Sequence[Any]] = {}
+    for name, col in (("labels", labels), ("probabilities", probabilities), ("scores", scores)):
+        if col is None:
+            continue
+        if isinstance(col, (str, bytes, Mapping)) or not hasattr(col, "__len__"):
+            raise ModelError(f"{name} is {type(col).__name__}, expected a list with one entry per text")
+        if len(col) != n:
+            raise ModelError(f"{len(col)} {name} for {n} texts; expected one per text")
+        cols[name] = col
+    cls: list[str] | None = None
+    if probabilities is not None:
+        if classes is None:
+            raise ModelError("probabilities came without the classes they refer to")
+        cls = [as_label(c, i) for i, c in enumerate(classes)]
+        if len(set(cls)) != len(cls):
+            raise ModelError(f"the classes {cls} repeat a label")
+    out = []
+    for i in range(n):
+        probs = None
+        if cls is not None:
+            row = cols["probabilities"][i]
+            if isinstance(row, (str, bytes, Mapping)) or not hasattr(row, "__len__"):
+                raise ModelError(f"probabilities of output {i} are {type(row).__name__}, expected a list of {len(cls)} numbers")
+            if len(row) != len(cls):
+                raise ModelError(
+                    f"output {i} has {len(row)} probabilities for {len(cls)} classes {cls}; expected one per class"
+                )
+            probs = {c: _float(p, f"probability of {c!r} in output {i}") for c, p in zip(cls, row)}
+        if labels is not None:
+            lab = as_label(cols["labels"][i], i)
+        else:
+            assert probs is not None
+            lab = max(probs, key=probs.__getitem__)  # first class wins a tie
+        sc = None
+        if scores is not None:
+            sc = _float(cols["scores"][i], f"score of output {i}")
+        out.append(Prediction(label=lab, score=sc, probabilities=probs))
+    return out
+
+
+def prediction_from_item(x: Any, i: int) -> Prediction:
+    """One output of a Python callable: a label, or a dict with ``label`` / ``probabilities``
+    (label -> p) / ``score``, or a ready :class:`Prediction`."""
+    if isinstance(x, Prediction):
+        x = {"label": x.label, "score": x.score, "probabilities": x.probabilities}
+    if isinstance(x, Mapping):
+        unknown = set(x) - {"label", "probabilities", "score"}
+        if unknown:
+            raise ModelError(f"output {i} has unknown keys {sorted(map(str, unknown))}; expected label, probabilities, score")
+        probs = None
+        if x.get("probabilities") is not None:
+            raw = x["probabilities"]
+            if not isinstance(raw, Mapping):
+                raise ModelError(f"probabilities of output {i} are {type(raw).__name__}, expected a mapping label -> probability")
+            probs = {as_label(k, i): _float(v, f"probability of {k!r} in output {i}") for k, v in raw.items()}
+            if not probs:
+                raise ModelError(f"output {i} has an empty probabilities mapping")
+        if "label" in x:
+            lab = as_label(x["label"], i)
+        elif probs:
+            lab = max(probs, key=probs.__getitem__)
+        else:
+            raise ModelError(f"output {i} is a dict without 'label' or 'probabilities'")
+        sc = None if x.get("score") is None else _float(x["score"], f"score of output {i}")
+        return Prediction(label=lab, score=sc, probabilities=probs)
+    return Prediction(label=as_label(x, i))
+
+
+# --------------------------------------------------------------------------- checking a batch
+
+
+def check_outputs(batch: Sequence[str], out: Any) -> list[Prediction]:
+    """Raise :class:`ModelError` unless ``out`` is one well-formed Prediction per text."""
+    if isinstance(out, (str, bytes, Mapping)) or not hasattr(out, "__len__"):
+        raise ModelError(f"the model returned {type(out).__name__}, expected a list with one output per text")
+    out = list(out)
     if len(out) != len(batch):
+        raise ModelError(f"{len(batch)} texts got {len(out)} outputs; expected one output per text")
+    for i, p in enumerate(out):
+        if not isinstance(p, Prediction):
+            raise ModelError(f"output {i} is {type(p).__name__}, expected a Prediction")  # adapter bug
+        if not p.label:
+            raise ModelError(f"output {i} has no label")
+        if p.probabilities is not None:
+            total = 0.0
+            for lab, v in p.probabilities.items():
+                if isinstance(v, bool) or not isinstance(v, (int, float)) or not math.isfinite(v) or v < 0:
+                    raise ModelError(f"output {i}: probability {v!r} of {lab!r} is not a finite number >= 0")
+                total += v
+            if abs(total - 1.0) > PROBABILITY_TOLERANCE:
+                raise ModelError(
+                    f"output {i}: probabilities {dict(p.probabilities)} sum to {total:.6g}, expected 1 "
+                    f"(within {PROBABILITY_TOLERANCE})"
+                )
+        if p.score is not None and (
+            isinstance(p.score, bool) or not isinstance(p.score, (int, float))
+            or not (math.isfinite(p.score) and -1.0 <= p.score <= 1.0)
+        ):
+            raise ModelError(f"output {i}: score {p.score!r} is not a number in [-1, 1]")
+    return out
+
+
+def _where(model: Any, index: int, total: int, batch: Sequence[str]) -> str:
+    first = batch[0] if batch else ""
+    return (
+        f"model {model.spec}: batch {index + 1} of {total} ({len(batch)} texts, first {first[:50]!r}"
+        f"{'...' if len(first) > 50 else ''})"
+    )
+
+
+def call_batch(model: Any, batch: Sequence[str], index: int, total: int) -> list[Prediction]:
+    """One checked model call; every failure becomes a PairflipError naming model and batch."""
+    try:
+        out = model.predict(list(batch))
+        return check_outputs(batch, out)
+    except ModelError as err:
+        raise PairflipError(f"{_where(model, index, total, batch)}: {err}") from None
+    except PairflipError:
+        raise
+    except Exception as err:
         raise PairflipError(
-            f"model {model.spec}: batch {index} of {len(batch)} texts returned {len(out)} outputs; "
-            f"expected one output per text"
-        )
-    return list(out)
+            f"{_where(model, index, total, batch)}: the model raised {type(err).__name__}: {err}"
+        ) from err
 
 
-def run_batches(model: Any, batches: Sequence[Sequence[str]], *, concurrency: int = 1) -> Iterator[tuple[Sequence[str], list[Prediction]]]:
-    """Yield ``(batch, predictions)`` in order. With ``concurrency > 1`` up to that many batches
-    are in flight at once (threads; for HTTP and command models)."""
-    if concurrency < 1:
-        raise PairflipError(f"--concurrency must be at least 1, got {concurrency}")
+# --------------------------------------------------------------------------- running batches
 
-    def call(i: int, batch: Sequence[str]) -> list[Prediction]:
-        try:
-            out = model.predict(list(batch))
-        except PairflipError:
-            raise
-        except Exception as err:
-            raise PairflipError(
-                f"model {model.spec} raised {type(err).__name__} on batch {i} ({len(batch)} texts, "
-                f"first: {batch[0][:60]!r}): {err}"
-            ) from err
-        return check_outputs(model, batch, out, i)
 
-    if concurrency == 1 or len(batches) <= 1:
+def run_batches(
+    model: Any, batches: Sequence[Sequence[str]], *, concurrency: int = 1
+) -> Iterator[tuple[int, Sequence[str], list[Prediction]]]:
+    """Yield ``(index, batch, predictions)`` for every batch, as each one finishes.
+
+    With ``concurrency > 1`` and a model that allows it (``model.parallel``: HTTP and ``cmd:``
+    models), up to that many batches are in flight at once in threads; results may then come in
+    any order. In-process Python models always run one batch at a time. On the first failure,
+    batches not yet started are cancelled and the error is raised.
+    """
+    if not isinstance(concurrency, int) or concurrency < 1:
+        raise PairflipError(f"--concurrency must be a whole number >= 1, got {concurrency!r}")
+    total = len(batches)
+    if concurrency == 1 or total <= 1 or not getattr(model, "parallel", False):
         for i, b in enumerate(batches):
-            yield b, call(i, b)
+            yield i, b, call_batch(model, b, i, total)
         return
-    with ThreadPoolExecutor(max_workers=concurrency) as pool:
-        pending = []
-        it = iter(enumerate(batches))
-        for i, b in it:
-            pending.append((b, pool.submit(call, i, b)))
-            if len(pending) >= concurrency:
-                break
-        for i, b in it:
-            done_b, fut = pending.pop(0)
-            yield done_b, fut.result()
-            pending.append((b, pool.submit(call, i, b)))
-        for done_b, fut in pending:
-            yield done_b, fut.result()
+    pool = ThreadPoolExecutor(max_workers=concurrency, thread_name_prefix="pairflip-batch")
+    running: dict[Future[list[Prediction]], int] = {}
+    next_i = 0
+    try:
+        while next_i < total or running:
+            while next_i < total and len(running) < concurrency:
+                running[pool.submit(call_batch, model, batches[next_i], next_i, total)] = next_i
+                next_i += 1
+            done, _ = wait(list(running), return_when=FIRST_COMPLETED)
+            failed: BaseException | None = None
+            for fut in sorted(done, key=running.__getitem__):
+                i = running.pop(fut)
+                err = fut.exception()
+                if err is not None:
+                    failed = failed or err
+                    continue
+                yield i, batches[i], fut.result()  # finished batches reach the cache first
+            if failed is not None:
+                raise failed
+    finally:
+        # On an error (or the caller stopping early) do not wait for the batches in flight.
+        pool.shutdown(wait=False, cancel_futures=True)

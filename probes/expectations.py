@@ -1,6 +1,30 @@
-"""Expectations -> verdicts, judged against the model's own output on the source."""
+"""Expectations -> verdicts, judged against the model's own output on the source.
+
+The rules, from DESIGN.md's table ("polarity" is -1, 0 or +1 from the label mapping; "score" is
+the polarity score in [-1, 1], used only when both sides have one):
+
+==========  ==============================================================================
+should      violation when
+==========  ==============================================================================
+flip        the variant's polarity equals the source's; ``n/a`` when the source is neutral
+hold        the label changed
+strengthen  the polarity reversed or moved toward neutral; with scores, also when |score|
+            fell by more than ``margin``
+weaken      the polarity reversed; with scores, also when |score| rose by more than ``margin``
+none        never (diagnostic rules: only their flip rate is reported)
+==========  ==============================================================================
+
+On an ordinal scale with several labels per side (1-5 stars) "moved toward neutral" is judged on
+the rank: 5 -> 4 stars is a move toward the neutral 3 (pass ``source_strength`` and
+``variant_strength``, the distance of each label from the middle of the scale).
+"""
 
 from __future__ import annotations
+
+from pairflip.records import SHOULDS, PairflipError
+
+# A change of exactly ``margin`` is tolerated; this absorbs float rounding (0.8 - 0.7 > 0.1).
+_EPS = 1e-9
 
 
 def judge(
@@ -12,17 +36,11 @@ def judge(
     source_score: float | None = None,
     variant_score: float | None = None,
     margin: float = 0.0,
+    *,
+    source_strength: float | None = None,
+    variant_strength: float | None = None,
 ) -> str:
-    """Return ``"ok"``, ``"violation"`` or ``"n/a"`` for one pair.
-
-    flip        violation when the variant's polarity equals the source's; n/a for a neutral source
-    hold        violation when the label changed
-    strengthen  violation when the polarity reversed or moved toward neutral; with scores, when
-                |score| fell by more than ``margin``
-    weaken      violation when the polarity reversed; with scores, when |score| rose by more
-                than ``margin``
-    none        never (diagnostic rules)
-    """
+    """Return ``"ok"``, ``"violation"`` or ``"n/a"`` for one pair (see the module table)."""
     if should == "none":
         return "ok"
     if should == "flip":
@@ -31,19 +49,27 @@ def judge(
         return "violation" if variant_polarity == source_polarity else "ok"
     if should == "hold":
         return "violation" if variant_label != source_label else "ok"
+    if should not in SHOULDS:
+        raise PairflipError(f"unknown expectation {should!r}; expected one of {', '.join(SHOULDS)}")
     reversed_ = source_polarity != 0 and variant_polarity == -source_polarity
+    scored = source_score is not None and variant_score is not None
     if should == "strengthen":
         if reversed_ or (source_polarity != 0 and variant_polarity == 0):
             return "violation"
-        if source_score is not None and variant_score is not None:
-            if abs(variant_score) < abs(source_score) - margin:
-                return "violation"
-        return "ok"
-    if should == "weaken":
-        if reversed_:
+        if (
+            source_polarity != 0
+            and variant_polarity == source_polarity
+            and source_strength is not None
+            and variant_strength is not None
+            and variant_strength < source_strength
+        ):
+            return "violation"  # 5 -> 4 stars: same side, closer to neutral
+        if scored and abs(source_score) - abs(variant_score) > margin + _EPS:  # type: ignore[arg-type]
             return "violation"
-        if source_score is not None and variant_score is not None:
-            if abs(variant_score) > abs(source_score) + margin:
-                return "violation"
         return "ok"
-    raise ValueError(f"unknown expectation {should!r}; expected one of flip, hold, strengthen, weaken, none")
+    # weaken
+    if reversed_:
+        return "violation"
+    if scored and abs(variant_score) - abs(source_score) > margin + _EPS:  # type: ignore[arg-type]
+        return "violation"
+    return "ok"

@@ -1,13 +1,20 @@
-"""Run a model on every distinct text of a suite once, then judge every pair."""
+"""Run a model on every distinct text of a suite once, then judge every pair.
+
+Many pairs share a source sentence, so the suite's texts are collected first (each once, in
+first-seen order) and sent to the model in batches of ``batch_size``. With a prediction cache
+the texts it already holds for this model are not sent again, and each finished batch is
+committed at once, so an interrupted run resumes where it stopped.
+"""
 
 from __future__ import annotations
 
 import math
+import sqlite3
 from typing import Any, Callable, Iterable, Sequence
 
 from pairflip.labels import LabelMap
 from pairflip.probes.expectations import judge
-from pairflip.records import Pair, PairflipError, Prediction, Results, Suite, Verdict
+from pairflip.records import SHOULDS, Pair, PairflipError, Prediction, Results, Suite, Verdict, suite_sha256
 
 
 def distinct_texts(pairs: Iterable[Pair]) -> list[str]:
@@ -31,24 +38,28 @@ def predict_all(
     """Predict each text once, in batches; texts already in ``cache`` are not sent again.
 
     The cache (see :mod:`pairflip.probes.cache`) is written batch by batch, so an interrupted
-    run keeps every finished batch. ``on_batch(done, total)`` reports progress.
+    or failed run keeps every finished batch. ``on_batch(done, total)`` reports progress in texts.
     """
-    if batch_size < 1:
-        raise PairflipError(f"--batch-size must be at least 1, got {batch_size}")
+    from pairflip.probes.batching import run_batches
+
+    if isinstance(batch_size, bool) or not isinstance(batch_size, int) or batch_size < 1:
+        raise PairflipError(f"--batch-size must be a whole number >= 1, got {batch_size!r}")
     preds: dict[str, Prediction] = {}
+    fp = model.fingerprint() if cache is not None else ""
     if cache is not None:
-        preds.update(cache.get_many(model.fingerprint(), texts))
-    todo = [t for t in texts if t not in preds]
-    total = len(texts)
+        preds.update(cache.get_many(fp, texts))
+    todo = [t for t in dict.fromkeys(texts) if t not in preds]
+    total = len(set(texts))
     done = total - len(todo)
     if on_batch:
         on_batch(done, total)
     batches = [todo[i : i + batch_size] for i in range(0, len(todo), batch_size)]
-    from pairflip.probes.batching import run_batches
-
-    for batch, out in run_batches(model, batches, concurrency=concurrency):
+    for _, batch, out in run_batches(model, batches, concurrency=concurrency):
         if cache is not None:
-            cache.put_many(model.fingerprint(), list(zip(batch, out)))
+            try:
+                cache.put_many(fp, list(zip(batch, out)))
+            except sqlite3.Error as err:
+                raise PairflipError(f"--cache {getattr(cache, 'path', '')}: cannot write predictions ({err})") from None
         preds.update(zip(batch, out))
         done += len(batch)
         if on_batch:
@@ -56,36 +67,41 @@ def predict_all(
     return preds
 
 
-def _label_map(labels: LabelMap | Sequence[str] | str | None, model: Any, preds: dict[str, Prediction]) -> LabelMap:
-    if isinstance(labels, LabelMap):
-        return labels
-    if labels:
-        return LabelMap.from_labels(labels)
-    classes = getattr(model, "classes", None)
-    if classes:
-        try:
-            return LabelMap.recognise(classes)
-        except PairflipError:
-            pass
-    seen: set[str] = {p.label for p in preds.values()}
+def label_map(labels: LabelMap | Sequence[str] | str | None, model: Any, preds: dict[str, Prediction]) -> LabelMap:
+    """The mapping in force: ``labels`` when given, else recognised from the model's classes and
+    every label it produced. Every label seen must be on the scale."""
+    seen: set[str] = set()
     for p in preds.values():
+        seen.add(p.label)
         if p.probabilities:
             seen.update(p.probabilities)
-    if not seen:
-        raise PairflipError("the model produced no labels")
-    return LabelMap.recognise(seen)
+    classes = list(getattr(model, "classes", None) or [])
+    if isinstance(labels, LabelMap):
+        lm = labels
+    elif labels:
+        lm = LabelMap.from_labels(labels)
+    else:
+        lm = LabelMap.recognise(set(classes) | seen)
+    lm.check(seen | set(classes), where=f"model {model.spec}: ")
+    return lm
 
 
 def polarity_score(pred: Prediction, lm: LabelMap, where: str = "") -> float | None:
-    """Expected polarity from probabilities, else the model's own scalar score, else None."""
+    """The model's own scalar score when it gives one, else the expected polarity under its
+    probabilities, else None (label-only model)."""
+    if pred.score is not None:
+        return lm.check_score(pred.score, where=where)
     if pred.probabilities:
         return lm.score_from_probabilities(pred.probabilities, where=where)
-    if pred.score is not None:
-        s = float(pred.score)
-        if not math.isfinite(s) or not -1.0 <= s <= 1.0:
-            raise PairflipError(f"{where}score {pred.score!r} is not a number in [-1, 1]")
-        return s
     return None
+
+
+def _check_pairs(pairs: list[Pair]) -> None:
+    for p in pairs:
+        if p.should not in SHOULDS:
+            raise PairflipError(
+                f"pair {p.id} ({p.rule}): should {p.should!r} is not one of {', '.join(SHOULDS)}"
+            )
 
 
 def score(
@@ -102,36 +118,51 @@ def score(
 ) -> Results:
     """Score a suite: ``pairflip.score(suite, model)``, model a callable, sklearn-like object or SPEC.
 
-    Returns :class:`~pairflip.records.Results` with one verdict per pair and a header naming the
-    suite (content hash), the model and the label mapping used.
+    ``labels`` (most negative first) overrides the recognised label scale; ``margin`` is the
+    score change strengthen/weaken tolerate; ``batch_size`` texts go to the model per call, up to
+    ``concurrency`` calls at once (HTTP and ``cmd:`` models); ``cache`` is a
+    :class:`~pairflip.probes.cache.PredictionCache`. Returns
+    :class:`~pairflip.records.Results`: one verdict per pair and a header naming the suite
+    (content hash and path), the model (``describe()``) and the label mapping used.
     """
-    from pairflip.probes.adapters import as_model
+    from pairflip.probes.adapters import Model, as_model
 
-    if margin < 0 or not math.isfinite(margin):
-        raise PairflipError(f"--margin must be a number >= 0, got {margin}")
-    m = as_model(model)
+    if isinstance(margin, bool) or not isinstance(margin, (int, float)) or not math.isfinite(margin) or margin < 0:
+        raise PairflipError(f"--margin must be a number >= 0, got {margin!r}")
+    given = LabelMap.from_labels(labels) if labels and not isinstance(labels, LabelMap) else labels
     pairs = list(suite)
     if not pairs:
         raise PairflipError("the suite holds no pairs; nothing to score")
+    _check_pairs(pairs)
     texts = distinct_texts(pairs)
-    preds = predict_all(m, texts, batch_size=batch_size, cache=cache, concurrency=concurrency, on_batch=on_batch)
-    lm = _label_map(labels, m, preds)
+    m = as_model(model)
+    try:
+        preds = predict_all(m, texts, batch_size=batch_size, cache=cache, concurrency=concurrency, on_batch=on_batch)
+    finally:
+        if not isinstance(model, Model):  # made here from a SPEC or object: stop its processes
+            m.close()
+    lm = label_map(given, m, preds)
     where = f"model {m.spec}: "
-    polar: dict[str, tuple[str, int, float | None]] = {}
+    polar: dict[str, tuple[str, int, float, float | None]] = {}
     for t in texts:
         p = preds[t]
         lab = lm.canonical(p.label)
-        polar[t] = (lab, lm.polarity_of(lab), polarity_score(p, lm, where))
+        try:
+            sc = polarity_score(p, lm, where)
+        except PairflipError as err:
+            raise PairflipError(f"{err} (text {t[:60]!r})") from None
+        polar[t] = (lab, lm.polarity_of(lab), lm.strength(lab), sc)
     verdicts = []
     for pair in pairs:
-        sl, sp, ss = polar[pair.source]
-        vl, vp, vs = polar[pair.variant]
+        sl, sp, sst, ss = polar[pair.source]
+        vl, vp, vst, vs = polar[pair.variant]
         verdicts.append(
             Verdict(
                 id=pair.id,
                 source_pred=sl,
                 variant_pred=vl,
-                verdict=judge(pair.should, sp, vp, sl, vl, ss, vs, margin),
+                verdict=judge(pair.should, sp, vp, sl, vl, ss, vs, float(margin),
+                              source_strength=sst, variant_strength=vst),
                 source_score=ss,
                 variant_score=vs,
                 family=pair.family,
@@ -143,7 +174,7 @@ def score(
                 label=pair.label,
             )
         )
-    suite_info: dict[str, Any] = {"sha256": Suite(header={}, pairs=pairs).sha256()}
+    suite_info: dict[str, Any] = {"sha256": suite_sha256(pairs)}
     if isinstance(suite, Suite):
         suite_info["path"] = suite_path or suite.header.get("path")
         gen = suite.header.get("generator")
@@ -160,7 +191,7 @@ def score(
         "suite": suite_info,
         "model": m.describe(),
         "labels": lm.to_dict(),
-        "margin": margin,
+        "margin": float(margin),
         "texts_predicted": len(texts),
     }
     return Results(header=header, verdicts=verdicts)

@@ -205,7 +205,7 @@ def summarize(
             by_rule[v.rule].append(v)
             by_pred[v.source_pred].append(v)
             if has_gold:
-                by_gold[v.label if v.label is not None else "(none)"].append(v)
+                by_gold[_gold_name(v.label, labels)].append(v)
         for rule in sorted(by_rule):
             rg = GroupStats(should=_should_of(by_rule[rule]))
             _fill(rg, by_rule[rule], cluster, seed, n_boot)
@@ -233,6 +233,16 @@ def summarize(
         interval="cluster-bootstrap" if cluster == "source" else "wilson",
         header=dict(results.header),
     )
+
+
+def _gold_name(label: str | None, labels: dict[str, Any]) -> str:
+    """A gold label spelled as on the model's scale when it matches one case-insensitively."""
+    if label is None:
+        return "(none)"
+    for name in labels.get("order") or []:
+        if str(name).lower() == label.strip().lower():
+            return str(name)
+    return label.strip()
 
 
 def _label_order(groups: dict[str, list[Verdict]], labels: dict[str, Any]) -> list[str]:

@@ -1,0 +1,82 @@
+"""``--model path/model.joblib``: a fitted scikit-learn-like object saved with joblib.
+
+The object needs ``predict``; with ``predict_proba`` and ``classes_`` pairflip also gets
+probabilities and hence polarity scores. A scikit-learn ``Pipeline`` that vectorises text and
+then classifies is the typical case.
+
+Security: ``joblib.load`` unpickles the file, and unpickling runs code stored in it. pairflip
+loads only the one file the user names on the command line, never a file it finds on its own;
+name only model files you trust.
+
+The model's fingerprint (its prediction cache key) is the SHA-256 of the file's bytes, so a
+retrained model saved over the same path never reuses stale cached predictions.
+"""
+
+from __future__ import annotations
+
+import hashlib
+from pathlib import Path
+
+from pairflip.probes.adapters import PythonModel
+from pairflip.records import PairflipError
+
+
+def _sha256(path: Path) -> str:
+    h = hashlib.sha256()
+    with open(path, "rb") as fh:
+        for chunk in iter(lambda: fh.read(1 << 20), b""):
+            h.update(chunk)
+    return h.hexdigest()
+
+
+def load_file_model(path: str | Path) -> PythonModel:
+    """Load one model file; every failure is a PairflipError naming the path."""
+    p = Path(path)
+    if not p.exists():
+        raise PairflipError(f"--model {p}: no such file")
+    if p.is_dir():
+        raise PairflipError(f"--model {p}: is a folder, expected a model file saved with joblib.dump")
+    try:
+        digest = _sha256(p)
+    except OSError as err:
+        raise PairflipError(f"--model {p}: cannot read the file ({err.strerror or err})") from None
+    import joblib
+
+    try:
+        obj = joblib.load(p)  # runs code stored in the pickle: only the file the user named
+    except MemoryError:
+        raise
+    except Exception as err:  # UnpicklingError, EOFError, KeyError, ValueError, ModuleNotFoundError, ...
+        raise PairflipError(
+            f"--model {p}: cannot load the model file ({type(err).__name__}: {str(err)[:200]}); "
+            f"expected a fitted scikit-learn-like model saved with joblib.dump"
+        ) from None
+    if not hasattr(obj, "predict") or not callable(getattr(obj, "predict")):
+        raise PairflipError(
+            f"--model {p}: the file holds a {type(obj).__module__}.{type(obj).__qualname__}, which has no "
+            f"predict method; expected a fitted scikit-learn-like model (predict, optionally predict_proba and classes_)"
+        )
+    _check_fitted(p, obj)
+    model = PythonModel(obj, spec=str(p), name=p.stem, fingerprint=digest)
+    model.kind = "joblib"
+    return model
+
+
+def _check_fitted(p: Path, obj: object) -> None:
+    """A scikit-learn estimator saved before ``fit`` fails here, not in the first batch."""
+    try:
+        from sklearn.base import BaseEstimator
+        from sklearn.exceptions import NotFittedError
+        from sklearn.utils.validation import check_is_fitted
+    except ImportError:  # pragma: no cover - scikit-learn is a dependency
+        return
+    if isinstance(obj, BaseEstimator):
+        try:
+            check_is_fitted(obj)
+        except NotFittedError:
+            raise PairflipError(
+                f"--model {p}: the {type(obj).__qualname__} in the file was saved before it was fitted; "
+                f"call fit() before joblib.dump"
+            ) from None
+        except TypeError:  # not an estimator check_is_fitted understands
+            pass

@@ -1,0 +1,238 @@
+"""Table-driven tests of the negation family: source -> exact variant (or no variant), per rule.
+
+The expected variants are hand-written from standard English grammar (do-support with tense and
+agreement, negation after the first auxiliary, contraction style kept), not taken from the code.
+"""
+
+from __future__ import annotations
+
+import random
+
+import pytest
+
+from pairflip.perturb import negation
+from pairflip.perturb.base import Context, apply_edits, validate
+from pairflip.perturb.build import iter_pairs
+from pairflip.perturb.lexicon import load_lexicon
+from pairflip.perturb.nlp import load_nlp
+
+
+@pytest.fixture(scope="module")
+def nlp():
+    return load_nlp()
+
+
+@pytest.fixture(scope="module")
+def lex():
+    return load_lexicon()
+
+
+def run(nlp, lex, text: str):
+    doc = nlp(text)
+    out = []
+    for cand in negation.candidates(doc, Context(lexicon=lex, rng=random.Random(0))):
+        variant, _ = apply_edits(doc, cand.edits)
+        out.append((cand.rule, variant, validate(doc, cand, variant)))
+    return out
+
+
+NO = None  # "no variant"
+
+CASES = [
+    # ---- negation/copula: present, past, persons, numbers, both styles
+    ("The tent is comfortable.", "negation/copula", "The tent isn't comfortable."),
+    ("The tent is comfortable and I don't camp often.", "negation/copula", "The tent isn't comfortable and I don't camp often."),
+    ("The straps are sturdy.", "negation/copula", "The straps aren't sturdy."),
+    ("The stove was excellent.", "negation/copula", "The stove wasn't excellent."),
+    ("The poles were flimsy.", "negation/copula", "The poles weren't flimsy."),
+    ("I am happy with it.", "negation/copula", "I am not happy with it."),
+    ("I'm happy with it.", "negation/copula", "I'm not happy with it."),
+    ("They're comfortable.", "negation/copula", "They're not comfortable."),
+    ("It's great.", "negation/copula", "It's not great."),
+    ("We're very satisfied.", "negation/copula", "We're not very satisfied."),
+    ("The tent is not cheap, and the zipper is not smooth.", "negation/removal", "The tent is cheap, and the zipper is smooth."),
+    # only the opinion clause is edited; a clause without an opinion word is left as it is
+    ("The sleeping bag is warm, but it does not pack small.", "negation/copula", "The sleeping bag is not warm, but it does not pack small."),
+    ("The lantern was not bright. The case is sturdy.", "negation/removal", "The lantern was bright. The case is not sturdy."),
+    ("The zipper is smooth. It does not snag.", "negation/copula", "The zipper is not smooth. It does not snag."),
+    ("I was very impressed.", "negation/copula", "I wasn't very impressed."),  # no style shown: contracted
+    ("The tent is definitely worth the money.", "negation/copula", "The tent is definitely not worth the money."),
+    ("It's really great.", "negation/copula", "It's not really great."),
+    ("I think it's great.", "negation/copula", "I think it's not great."),
+    ("This is the best tent I've ever owned.", "negation/copula", "This isn't the best tent I've ever owned."),
+    ("The jacket is being difficult.", "negation/copula", "The jacket isn't being difficult."),
+    ("It's great but they're slow to reply.", "negation/copula", "It's not great but they're not slow to reply."),
+    # ---- negation/modal: will, can, would, should, could, must, have/has/had (perfect)
+    ("The boots will last for years.", "negation/modal", "The boots won't last for years."),
+    ("It'll last for years.", "negation/modal", "It won't last for years."),
+    ("You can trust this filter.", "negation/modal", "You can't trust this filter."),
+    ("I would recommend this tent.", "negation/modal", "I wouldn't recommend this tent."),
+    ("I'd recommend this tent.", "negation/modal", "I wouldn't recommend this tent."),
+    ("I would definitely recommend this tent.", "negation/modal", "I would definitely not recommend this tent."),
+    # a causal clause under a main clause the lexicon cannot judge: "buy it because it doesn't work" clashes
+    ("You should buy this stove because it works well.", NO, NO),
+    ("I returned it because it leaked.", NO, NO),
+    ("I'll wear these boots until they fall apart.", NO, NO),
+    ("The tent is great because it never leaks.", "negation/copula", "The tent isn't great because it leaks."),
+    ("These are the most painful boots I have ever worn.", "negation/copula", "These aren't the most painful boots I have ever worn."),
+    ("The tent didn't leak a drop.", NO, NO),  # minimiser
+    ("I'm really disappointed that the zipper broke.", "negation/copula", "I'm not really disappointed that the zipper broke."),
+    ("The kids loved the tent and the dog did too.", NO, NO),  # elliptical "did" echoes "loved"
+    ("The tent leaks, the poles bend and the zipper sticks.", NO, NO),  # parser leaves "leaks" unattached
+    ("The instructions could be clearer.", "negation/modal", "The instructions couldn't be clearer."),
+    ("It's not the sturdiest tent, but it's cheap.", "negation/removal", "It's the sturdiest tent, but it's not cheap."),
+    ("It's been working flawlessly.", "negation/modal", "It hasn't been working flawlessly."),
+    ("She said the tent was excellent.", "negation/copula", "She said the tent wasn't excellent."),
+    ("The seat is not uncomfortable.", "negation/removal", "The seat is uncomfortable."),
+    ("I'm really impressed with how warm this bag is.", "negation/copula", "I'm not really impressed with how warm this bag is."),
+    ("The chair is wobbly on any ground that isn't flat.", "negation/copula", "The chair isn't wobbly on any ground that isn't flat."),
+    ("The stove is perfect for quick coffee stops.", "negation/copula", "The stove isn't perfect for quick coffee stops."),
+    ("The strap is a little tight.", NO, NO),
+    ("The straps won't stay tight and keep loosening.", NO, NO),
+    ("The lantern has been reliable.", "negation/modal", "The lantern hasn't been reliable."),
+    ("It's been great.", "negation/modal", "It hasn't been great."),
+    ("I have loved every minute.", NO, NO),  # "every": quantifier scope
+    ("They have worked perfectly for a year.", "negation/modal", "They haven't worked perfectly for a year."),
+    ("I've enjoyed this jacket.", "negation/modal", "I haven't enjoyed this jacket."),
+    ("The stove had failed twice.", "negation/modal", "The stove hadn't failed twice."),
+    ("The poles could fail in the wind.", "negation/modal", "The poles couldn't fail in the wind."),
+    ("It might break in the cold.", "negation/modal", "It might not break in the cold."),
+    ("The case must protect the lens well.", "negation/modal", "The case mustn't protect the lens well."),
+    ("It would have been perfect.", NO, NO),  # counterfactual perfect
+    # ---- negation/do-support: tense, person, number, irregular verbs
+    ("I love this jacket.", "negation/do-support", "I don't love this jacket."),
+    ("She loves her boots.", "negation/do-support", "She doesn't love her boots."),
+    ("They love the stove.", "negation/do-support", "They don't love the stove."),
+    ("We loved it.", "negation/do-support", "We didn't love it."),
+    ("The zipper broke after two days.", "negation/do-support", "The zipper didn't break after two days."),
+    ("They broke the first week.", "negation/do-support", "They didn't break the first week."),
+    ("The fly tore on the second night.", "negation/do-support", "The fly didn't tear on the second night."),
+    ("The hip belt fit snugly.", "negation/do-support", "The hip belt didn't fit snugly."),
+    ("The boots fit perfectly.", "negation/do-support", "The boots don't fit perfectly."),
+    ("It works great.", "negation/do-support", "It doesn't work great."),
+    ("I ordered the lamp and it flickers.", "negation/do-support", "I ordered the lamp and it doesn't flicker."),
+    ("We went there and loved it.", "negation/do-support", "We went there and didn't love it."),
+    ("I really like it.", "negation/do-support", "I don't really like it."),
+    ("I definitely recommend it.", "negation/do-support", "I definitely don't recommend it."),
+    ("The tent looks nice, but it leaks.", "negation/do-support", "The tent doesn't look nice, but it doesn't leak."),
+    ("The seat sags after a few hours.", "negation/do-support", "The seat doesn't sag after a few hours."),
+    ("The jacket kept me dry.", NO, NO),  # "dry" is no opinion word
+    ("The batteries died overnight.", "negation/do-support", "The batteries didn't die overnight."),
+    ("I hate the zipper.", "negation/do-support", "I don't hate the zipper."),
+    ("I LOVE THIS TENT.", "negation/do-support", "I DON'T LOVE THIS TENT."),
+    ("This griddle makes the best pancakes.", "negation/do-support", "This griddle doesn't make the best pancakes."),
+    ("I do like the color.", "negation/do-support", "I don't like the color."),
+    # ---- negation/removal
+    ("The tent isn't comfortable.", "negation/removal", "The tent is comfortable."),
+    ("The tent is not comfortable.", "negation/removal", "The tent is comfortable."),
+    ("It's not great.", "negation/removal", "It's great."),
+    ("I'm not impressed with the stitching.", "negation/removal", "I'm impressed with the stitching."),
+    ("The tent doesn't leak.", "negation/removal", "The tent leaks."),
+    ("I didn't like the color.", "negation/removal", "I liked the color."),
+    ("The stove does not work.", "negation/removal", "The stove works."),
+    ("I don't like the color.", "negation/removal", "I like the color."),
+    ("They don't fit well.", "negation/removal", "They fit well."),
+    ("The poles didn't break.", "negation/removal", "The poles broke."),
+    ("It won't last.", "negation/removal", "It will last."),
+    ("I can't recommend this pack.", "negation/removal", "I can recommend this pack."),
+    ("I cannot recommend this pack.", "negation/removal", "I can recommend this pack."),
+    ("I wouldn't recommend it.", "negation/removal", "I would recommend it."),
+    ("The boots never leak.", "negation/removal", "The boots leak."),
+    ("I have never owned a better sleeping bag.", "negation/removal", "I have owned a better sleeping bag."),
+    ("The pots aren't dishwasher safe.", "negation/removal", "The pots are dishwasher safe."),
+    ("The jacket wasn't worth the money.", "negation/removal", "The jacket was worth the money."),
+    ("It hasn't been reliable.", "negation/removal", "It has been reliable."),
+    ("The lid isn't very sturdy.", "negation/removal", "The lid is very sturdy."),
+    # ---- skipped: questions, imperatives, conditionals, fragments, NPIs, not only, other negators
+    ("Is it comfortable?", NO, NO),
+    ("Does it leak?", NO, NO),
+    ("Why is the zipper so flimsy?", NO, NO),
+    ("Love it!", NO, NO),
+    ("Buy this tent, it is great.", "negation/copula", "Buy this tent, it isn't great."),
+    ("Don't buy this flimsy tent.", NO, NO),
+    ("If it breaks, I will return it.", NO, NO),
+    ("Unless it leaks, the tent is great.", NO, NO),
+    ("Great tent, very light.", NO, NO),
+    ("Works great.", NO, NO),
+    ("I haven't had any problems.", NO, NO),
+    ("I can't recommend it enough.", NO, NO),
+    ("It isn't even close to comfortable.", NO, NO),
+    ("It is not only light but also warm.", NO, NO),
+    ("Nobody liked the lantern.", NO, NO),
+    ("There were no problems.", NO, NO),
+    ("I love it too.", NO, NO),
+    ("The stove is pretty good.", NO, NO),
+    ("It is absolutely perfect.", NO, NO),
+    ("It always works.", NO, NO),
+    ("The pan is heavy but durable.", NO, NO),
+    ("The tent was delivered on Monday.", NO, NO),  # no opinion word
+    ("The lantern doesn't flicker like my cheap one did.", NO, NO),
+]
+
+
+
+@pytest.mark.parametrize("source,rule,expected", CASES, ids=[c[0][:40] for c in CASES])
+def test_negation_case(nlp, lex, source, rule, expected):
+    got = run(nlp, lex, source)
+    valid = [(r, v) for r, v, why in got if why is None]
+    if expected is None:
+        assert valid == [], f"expected no variant, got {valid}"
+    else:
+        assert valid == [(rule, expected)], got
+        assert negation.RULES[rule] == "flip"
+
+
+def test_table_is_large_and_covers_every_rule():
+    assert len(CASES) >= 60
+    rules = {r for _, r, v in CASES if v}
+    assert rules == set(negation.RULES)
+    assert sum(1 for c in CASES if c[2] is None) >= 15
+
+
+def test_style_is_kept(nlp, lex):
+    # a text that writes "does not" gets full forms; one that contracts gets contractions
+    assert run(nlp, lex, "It does not rain here and the stove is reliable.")[0][1] == \
+        "It does not rain here and the stove is not reliable."
+    assert run(nlp, lex, "It doesn't rain here and the stove is reliable.")[0][1] == \
+        "It doesn't rain here and the stove isn't reliable."
+    assert run(nlp, lex, "I cannot sleep but the bag is warm.")[0][1] == "I cannot sleep but the bag is not warm."
+    assert run(nlp, lex, "It's raining but the tent will stay dry and I love it.")[0][1] == \
+        "It's raining but the tent will stay dry and I don't love it."
+
+
+TEXTS = [c[0] for c in CASES] + [
+    "The chair is sturdy and my dog loves it.",
+    "The pack has held up well after three years of daily use.",
+    "The filter was slow and the bag leaked.",
+]
+
+
+def test_determinism_and_no_identity(nlp, lex):
+    a = list(iter_pairs(TEXTS, families=["negation"], seed=3, nlp=nlp, lexicon=lex))
+    b = list(iter_pairs(TEXTS, families=["negation"], seed=3, nlp=nlp, lexicon=lex))
+    assert [(p.id, p.variant) for p in a] == [(p.id, p.variant) for p in b]
+    assert len(a) >= 60
+    for p in a:
+        assert p.variant != p.source
+        assert p.should == "flip" and p.family == "negation"
+        assert p.variant[:1].isupper()
+        assert "  " not in p.variant and " ." not in p.variant
+
+
+def test_several_clauses_are_all_negated(nlp, lex):
+    doc = nlp("The lantern is sturdy and the light is steady.")
+    cands = list(negation.candidates(doc, Context(lexicon=lex, rng=random.Random(0))))
+    assert len(cands) == 1 and len(cands[0].edits) == 2
+    assert cands[0].meta["rules"] == ["negation/copula", "negation/copula"]
+    assert apply_edits(doc, cands[0].edits)[0] == "The lantern isn't sturdy and the light isn't steady."
+
+
+def test_validate_checks_the_negation_count(nlp):
+    from pairflip.perturb.base import Candidate, TokenEdit
+
+    doc = nlp("The tent is comfortable.")
+    # a bug that negates twice must be caught, one that negates once must pass
+    twice = Candidate("negation/copula", "flip", (TokenEdit(2, 3, "isn't"), TokenEdit(3, 3, "never")), {"inserted": 1, "removed": 0})
+    once = Candidate("negation/copula", "flip", (TokenEdit(2, 3, "isn't"),), {"inserted": 1, "removed": 0})
+    assert validate(doc, twice, apply_edits(doc, twice.edits)[0]) is not None
+    assert validate(doc, once, apply_edits(doc, once.edits)[0]) is None
