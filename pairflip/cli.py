@@ -352,6 +352,13 @@ def gate(
 
         if not limit and limits_file is None:
             limits_file = default_limits_file(Path.cwd())
+        from pairflip.report.gate import LimitSyntaxError, parse_limit
+
+        try:
+            for x in limit:
+                parse_limit(x)  # before reading files; the message keeps its caret line
+        except LimitSyntaxError as err:
+            raise fail(str(err)) from None
         res = read_results(results)
         old = read_results(baseline) if baseline else None
         outcome = run_gate(res, limit, limits_file=limits_file, on=on, baseline=old, alpha=alpha, cluster=cluster, seed=seed)
@@ -421,10 +428,13 @@ def audit(
     """build + score + show (+ gate when --limit or --limits is given) in one go."""
     with _guard():
         if limit or limits_file is not None:
-            from pairflip.report.gate import ON, parse_limit, read_limits_file
+            from pairflip.report.gate import ON, LimitSyntaxError, parse_limit, read_limits_file
 
-            for x in limit:
-                parse_limit(x)  # fail on a malformed limit before the long work
+            try:
+                for x in limit:
+                    parse_limit(x)  # fail on a malformed limit before the long work
+            except LimitSyntaxError as err:
+                raise fail(str(err)) from None
             if limits_file is not None:
                 read_limits_file(limits_file)
             if on is not None and on not in ON:

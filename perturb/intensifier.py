@@ -45,11 +45,12 @@ from __future__ import annotations
 from typing import TYPE_CHECKING, Iterator
 
 from pairflip.perturb.base import NEGATORS, Candidate, Context, TokenEdit, lemma
+from pairflip.perturb.lexicon import OpinionWord
 
 if TYPE_CHECKING:  # pragma: no cover
-    from spacy.tokens import Doc, Span, Token
+    from spacy.tokens import Doc, Token
 
-    from pairflip.perturb.lexicon import Lexicon, OpinionWord
+    from pairflip.perturb.lexicon import Lexicon
 
 FAMILY = "intensifier"
 RULES = {
@@ -90,6 +91,8 @@ EXTRA_NEGATORS = frozenset({"without", "hardly", "barely", "scarcely", "lack", "
 # too) is never taken for one.
 ADJ_SUFFIXES = ("y", "ful", "ous", "ive", "able", "ible", "al", "ic", "less", "ish", "ent", "ant")
 ARTICLES = ("a", "an")
+HENDIADYS = frozenset({"nice", "good", "lovely", "fine"})
+EXCLAMATIVE = frozenset({"what", "such", "quite", "rather"})
 
 
 def candidates(doc: "Doc", ctx: Context) -> Iterator[Candidate]:
@@ -140,8 +143,6 @@ def _target(tok: "Token", lex: "Lexicon") -> tuple["OpinionWord", str] | None:
         if tok.lower_ == "well" and _as_well(tok):
             return None
         grade = _adverb_grade(tok.lower_, entry.grade, lex)
-        from pairflip.perturb.lexicon import OpinionWord
-
         return (OpinionWord(entry.word, "ADV", entry.polarity, grade), "adverb")
     # stance verbs (removal of an amplifier only)
     if tok.pos_ == "VERB" and lemma(tok) in STANCE_VERBS:
@@ -175,7 +176,12 @@ def _adjective_role(tok: "Token") -> str | None:
     dep = head.dep_
     if dep in ("amod", "compound") and head.head.pos_ in ("NOUN", "PROPN") and head.i < head.head.i:
         # "a great deal of", "a good deal of": a quantity, not an opinion
-        if head.head.lower_ == "deal":
+        noun = head.head
+        if noun.lower_ == "deal":
+            return None
+        if _in_adverbial_phrase(noun):
+            # "skates on wet granite", "in heavy rain", "after a couple of quick adjustments": the
+            # weather, ground or occasion, not the product; kept: "a tent with an easy setup"
             return None
         return "attributive"
     if dep in ("acomp", "attr", "oprd", "xcomp", "ccomp") and head.head.pos_ in ("VERB", "AUX"):
@@ -183,6 +189,19 @@ def _adjective_role(tok: "Token") -> str | None:
     if dep == "ROOT":  # a fragment: "Very comfortable."
         return "predicative"
     return None
+
+
+def _in_adverbial_phrase(noun: "Token") -> bool:
+    """Is the noun inside a prepositional phrase that modifies a verb (or a whole fragment)?"""
+    node = noun
+    while node.head.i != node.i:
+        if node.dep_ == "prep":
+            if node.head.pos_ in ("VERB", "AUX"):
+                return True
+            if node.lower_ not in ("with", "of"):
+                return True  # "a lantern for long nights": a use, not a quality of the lantern
+        node = node.head
+    return False
 
 
 def _adverb_grade(word: str, grade: str, lex: "Lexicon") -> str:
@@ -287,7 +306,7 @@ def _left_modifier(tok: "Token", degree: dict[tuple[str, ...], str]) -> tuple[in
         last = doc[tok.i - 1]
         if n == 1 and last.head.i != tok.i:
             return (start, "other")
-        if start > sent_start and doc[start - 1].lower_ in OTHER_DEGREE | {"very", "really", "not"}:
+        if start > sent_start and (doc[start - 1].lower_ in OTHER_DEGREE | {"very", "really", "not"} or doc[start - 1].text == ","):
             return (start, "other")  # "so very", "not really"
         return (start, kind)
     if tok.i > sent_start:
@@ -302,12 +321,18 @@ def _left_modifier(tok: "Token", degree: dict[tuple[str, ...], str]) -> tuple[in
 
 def _edits_for(doc: "Doc", tok: "Token", entry: "OpinionWord", role: str, degree: dict) -> Iterator[Candidate]:
     mod = _left_modifier(tok, degree)
+    k = (mod[0] if mod else tok.i) - 1  # the article, if any, is right before the edit
+    if k - 1 >= tok.sent.start and doc[k].lower_ in ARTICLES and doc[k - 1].lower_ in EXCLAMATIVE:
+        return  # "What a great lantern!", "such a roomy tent", "quite a heavy pack"
     base_meta = {"target": tok.text, "polarity": entry.polarity, "grade": entry.grade, "role": role}
     if role == "verb":
         if mod is not None and mod[1] in ("amplifier", "extreme-amplifier"):
             yield _candidate(doc, tok, mod[0], [], "intensifier/remove", dict(base_meta, op="remove"))
         return
     extreme = entry.grade == "extreme"
+    nxt = doc[tok.i + 1] if tok.i + 1 < len(doc) else None
+    if tok.lower_ in HENDIADYS and nxt is not None and nxt.lower_ == "and":
+        return  # "nice and light" means "pleasantly light": "very nice and light" loses that
     if mod is None:
         prev = doc[tok.i - 1] if tok.i > tok.sent.start else None
         if role == "attributive" and prev is not None and prev.tag_ in ("JJ", "JJR", "JJS", "NN", "VBN", "VBG"):
@@ -337,7 +362,8 @@ def _edits_for(doc: "Doc", tok: "Token", entry: "OpinionWord", role: str, degree
 
 def _softener(entry: "OpinionWord", role: str) -> str:
     if entry.polarity > 0:
-        return SOFTENER_FAVOURABLE
+        # "fairly fair" repeats the stem
+        return SOFTENER_ADVERB if SOFTENER_FAVOURABLE.startswith(entry.word) else SOFTENER_FAVOURABLE
     if role == "predicative":
         return SOFTENER_PREDICATIVE
     if role == "attributive":
@@ -366,7 +392,6 @@ def _candidate(doc: "Doc", tok: "Token", start: int, new_words: list[str], rule:
         text = " ".join(out)
     else:
         text = " ".join(w for w, _ in words)
-    meta = dict(meta)
     return Candidate(rule, RULES[rule], (TokenEdit(region_start, tok.i + 1, text),), meta)
 
 

@@ -493,61 +493,69 @@ def clause_style(doc: "Doc", default: str = DEFAULT_STYLE) -> str:
 
 def candidates(doc: "Doc", ctx: Context) -> Iterator[Candidate]:
     """One candidate per text: every opinion clause toggled, or nothing."""
+    res = plan(doc, ctx)
+    if isinstance(res, Candidate):
+        yield res
+
+
+def plan(doc: "Doc", ctx: Context) -> "Candidate | str":
+    """The one candidate for ``doc`` (every opinion clause toggled), or why there is none."""
     an = analyse(doc, ctx.lexicon)
-    if doubtful(an) is not None:
-        return
+    why = doubtful(an)
+    if why is not None:
+        return why
     by_head = {cl.head.i: cl for cl in an.clauses}
     # the complement of an opinion ("disappointed that it broke") goes with its governor
     clauses = [cl for cl in an.clauses if not (_embedded(cl) and _governor(cl.head, by_head) is not None)]
     if any(_wh_fronted(cl) for cl in clauses):
-        return  # "how warm it is" under a clause with no opinion of its own
+        return "wh-fronted clause"  # "how warm it is" under a clause with no opinion of its own
     style = clause_style(doc)
     edits: list[TokenEdit] = []
     rules: list[str] = []
     inserted = removed = 0
     for cl in clauses:
         if cl.nonfinite_opinion:
-            return
+            return "opinion in a non-finite adverbial"
         if len({opinion_of(t, ctx.lexicon).polarity for t in predicate_opinion(cl)}) > 1:
-            return  # "heavy but durable": a negation would not reverse the clause
+            return "mixed polarity in one predicate"  # "heavy but durable": a negation would not reverse the clause
         own_ids = {t.i for t in cl.own}
         for t in cl.own:
             if t.dep_ == "conj" and t.pos_ == "VERB" and t.head.i == cl.head.i and not any(
                 opinion_of(x, ctx.lexicon) is not None for x in t.subtree
             ):
-                return  # "won't stay tight and keep loosening": the plain conjunct would clash
+                return "plain verb conjunct"  # "won't stay tight and keep loosening": the plain conjunct would clash
         if cl.head.dep_ == "advcl" and _governor(cl.head, by_head) is None:
-            return  # "I'll wear them until they fall apart": the main clause sets the frame
+            return "adverbial clause under a plain main clause"  # "I'll wear them until they fall apart": the main clause sets the frame
         if cl.head.dep_ in ("advcl", "conj") and any(
             g.norm(c.text) in _CAUSAL and c.dep_ in ("mark", "cc", "advmod") for c in cl.head.children
         ) and any(o.head.i == cl.head.head.i for o in an.others):
-            return  # a causal clause under a main clause the lexicon cannot judge
+            return "causal clause under a plain main clause"  # a causal clause under a main clause the lexicon cannot judge
         for t in cl.own:
             if t.dep_ == "cc" and g.norm(t.text) in ("but", "yet") and any(
                 c.dep_ == "conj" and c.i in own_ids for c in t.head.children
             ):
-                return  # "stiff at first but comfortable later": contrast inside one predicate
+                return "contrast inside one predicate"  # "stiff at first but comfortable later": contrast inside one predicate
         if cl.negated:
             res = removal(cl)
             if isinstance(res, str):
-                return
+                return "removal: " + res
             rules.append("negation/removal")
             edits.extend(res)
             removed += 1
         else:
             res2 = insertion(cl, style)
             if isinstance(res2, str):
-                return
+                return "insertion: " + res2
             rules.append(res2[0])
             edits.extend(res2[1])
             inserted += 1
     if not edits:
-        return
+        return "no edit"
     spans = sorted((e.start, e.end) for e in edits)
     for (s1, t1), (s2, t2) in zip(spans, spans[1:]):
         if s2 < t1 or (s1 == s2 and (s1 == t1 or s2 == t2)):
-            return  # two clauses share a token (a shared auxiliary): unsure
-    yield Candidate(
+            return "two clauses share a token"  # two clauses share a token (a shared auxiliary): unsure
+    return Candidate(
         rule=rules[0],
         should=RULES[rules[0]],
         edits=tuple(edits),

@@ -39,7 +39,7 @@ from __future__ import annotations
 
 from typing import TYPE_CHECKING, Iterator
 
-from pairflip.perturb.base import NEGATORS, Candidate, Context, TokenEdit, lemma
+from pairflip.perturb.base import NEGATORS, PUNCT_CLOSE, Candidate, Context, TokenEdit, lemma
 from pairflip.perturb.intensifier import _is_adjective, indefinite_article, match_article
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -57,7 +57,8 @@ COORDINATORS = {"np": {"and"}, "vp": {"and"}}  # kinds not listed accept DEFAULT
 DEFAULT_COORDINATORS = {"and", "or"}
 # Pronouns and determiners that point back to something said before (anaphora).
 ANAPHORS = frozenset(
-    "it its itself they them their theirs themselves this that these those he him his she her hers one ones".split()
+    "it its itself they them their theirs themselves this that these those he him his she her hers one ones "
+    "which who whom whose".split()
 )
 # Fixed binomials whose order is idiomatic (common practice; a short list for review text).
 BINOMIALS = frozenset(
@@ -80,7 +81,7 @@ FOCUS_WORDS = frozenset({"only", "even", "just", "also", "too", "hardly", "barel
 # Linking and stative verbs: clauses headed by them describe states, whose order is free.
 STATIVE_VERBS = frozenset(
     "be seem look feel sound smell taste stay remain appear have weigh cost fit contain include lack "
-    "need hold work keep".split()
+    "need hold work keep love like hate prefer".split()
 )
 
 # --- adverbials ---
@@ -97,7 +98,6 @@ CONDITION_NOUNS = frozenset(
     "darkness drizzle sleet hail mud altitude".split()
 )
 PLACE_NOUNS = frozenset("trail trails campsite campground backcountry mountains summit woods forest desert".split())
-FRAME_NOUNS = frozenset({"price", "money", "cost", "experience", "opinion", "view"})
 # Prepositions whose phrase is a free adjunct when its noun is of the right kind.
 ADJUNCT_PREPS = {
     "in": TIME_NOUNS | CONDITION_NOUNS | PLACE_NOUNS | {"experience", "opinion", "view"},
@@ -114,6 +114,11 @@ ADJUNCT_PREPS = {
     "over": TIME_NOUNS,
     "by": TIME_NOUNS,  # "by the end of the week"
 }
+TIME_UNITS = frozenset(
+    "second seconds minute minutes hour hours day days week weeks month months year years afternoon "
+    "morning evening night weekend".split()
+)
+DURATION_VERBS = frozenset({"last", "take", "run", "wait", "cost", "weigh", "hold"})
 TIME_DETS = frozenset({"every", "each", "last", "this", "next", "that", "all", "one"})
 TIME_ADVERBS = frozenset(
     "yesterday today tonight recently lately nowadays eventually later afterwards overnight".split()
@@ -126,6 +131,7 @@ ARGUMENT_VERBS = frozenset(  # verbs whose place phrase is an argument ("left it
     "put leave keep store place hang set stand sit lie live go come get arrive drive walk take bring "
     "carry fit pack move send ship return stay remain".split()
 )
+CONTRAST = frozenset({"but", "yet", "although", "though", "while", "whereas", "however"})
 CONTENT_POS = frozenset({"NOUN", "PROPN", "VERB", "ADJ", "ADV", "NUM"})
 
 
@@ -214,6 +220,12 @@ def _conjunct_span(tok: "Token", kind: str, others: set[int]) -> tuple[int, int]
         idx.pop()
     if not idx or idx != list(range(idx[0], idx[-1] + 1)):
         return None
+    if any(tok.doc[i].is_punct and tok.doc[i].text not in ("-", "'") for i in idx):
+        return None  # "warm, windproof and packable" parsed with "warm, windproof" as one conjunct
+    if kind in ("adj", "adv") and any(
+        c.i > tok.i and c.i in idx and c.dep_ not in ("xcomp", "advmod", "cc", "punct") for c in tok.children
+    ):
+        return None  # "warm and dry all day": "all day" belongs to the verb, not to "dry"
     return idx[0], idx[-1] + 1
 
 
@@ -230,6 +242,8 @@ def _coordination(sent: "Span", ctx: Context) -> Iterator[Candidate]:
         if len(kinds) != 1 or None in kinds:
             continue
         kind = kinds.pop()
+        if kind in ("adj", "adv") and head.dep_ in ("pobj", "dobj", "nsubj", "nsubjpass", "compound"):
+            continue  # "reliable in the cold and easy to light": "cold" is not coordinated with "easy"
         ccs = [c for t in conj for c in t.children if c.dep_ == "cc"]
         if len(ccs) != 1 or ccs[0].lower_ not in COORDINATORS.get(kind, DEFAULT_COORDINATORS):
             continue
@@ -243,15 +257,18 @@ def _coordination(sent: "Span", ctx: Context) -> Iterator[Candidate]:
         if not all(spans[k][1] <= spans[k + 1][0] for k in range(len(spans) - 1)):
             continue
         between = [doc[i] for k in range(len(spans) - 1) for i in range(spans[k][1], spans[k + 1][0])]
-        if any(not (t.text == "," or t.i == ccs[0].i) for t in between) or ccs[0] not in between:
+        if any(not (t.text == "," or t.i == ccs[0].i) for t in between) or ccs[0].i not in {t.i for t in between}:
             continue
         if ccs[0].i > spans[-1][0] or ccs[0].i < spans[-2][1]:
             continue  # the coordinator must come right before the last conjunct
+        after = spans[-1][1]
+        if kind in ("adj", "adv") and after < sent.end and doc[after].lower_ == "to" and doc[after].head.i not in ids:
+            continue  # "dark, stuffy and hard to move around in": the infinitive goes with the last one
         toks = [doc[a:b] for a, b in spans]
         texts = [s.text.lower() for s in toks]
         if len(set(texts)) != len(texts):
             continue
-        if not _coordination_ok(kind, conj, toks, texts):
+        if not _coordination_ok(kind, conj, toks, texts, lex):
             continue
         order = list(range(1, len(spans))) + [0]  # rotate by one: A, B, C -> B, C, A
         edits = []
@@ -274,9 +291,17 @@ def _coordination(sent: "Span", ctx: Context) -> Iterator[Candidate]:
         )
 
 
-def _coordination_ok(kind: str, conj: list["Token"], toks: list["Span"], texts: list[str]) -> bool:
+def _coordination_ok(kind: str, conj: list["Token"], toks: list["Span"], texts: list[str], lex) -> bool:
     if len(toks) == 2 and (texts[0], texts[1]) in BINOMIALS:
         return False
+    if kind == "np":
+        # "The poles and stakes": a shared determiner must not become one conjunct's own
+        determined = {any(c.dep_ in ("det", "poss") for c in t.children) for t in conj}
+        if len(determined) != 1:
+            return False
+        # an adjective the tagger took for a noun ("a light and warm bag") is not a noun phrase
+        if any(lex.lookup(t.lower_, "ADJ") is not None and lex.lookup(t.lower_, "NOUN") is None for t in conj):
+            return False
     if texts[0] in HENDIADYS and kind == "adj":
         return False
     for k, span in enumerate(toks):
@@ -322,19 +347,30 @@ def _adjunct(tok: "Token", root: "Token") -> bool:
         return False
     if tok.dep_ == "prep":
         allowed = ADJUNCT_PREPS.get(tok.lower_, ())
-        if allowed == ():
-            return False
+        if allowed == () or tok.left_edge.i != tok.i:
+            return False  # "held up well after three years": "well after" is not one phrase
+        if tok.lower_ in ("until", "till", "to", "through") and any(
+            c.dep_ == "prep" and c.lower_ == "from" for c in root.children
+        ):
+            return False  # "from midnight until dawn" is one span of time
+        if lemma(root) in DURATION_VERBS and tok.lower_ in ("for", "in", "over", "within"):
+            return False  # "will last for years": the duration is the verb's complement
         objs = [c for c in tok.children if c.dep_ == "pobj"]
         if len(objs) != 1 or objs[0].pos_ not in ("NOUN", "PROPN"):
             return False
         noun = objs[0]
-        if tok.lower_ == "in" and any(c.like_num for c in noun.subtree):
-            return False  # "charges in two hours": time to completion, not a frame
+        if tok.lower_ == "in" and (
+            any(c.like_num for c in noun.subtree)
+            or noun.lower_ in TIME_UNITS and not any(c.lower_ in ("the", "this", "that") for c in noun.children)
+        ):
+            return False  # "charges in two hours", "folds flat in seconds": time to completion, not a frame
         if allowed is not None and noun.lower_ not in allowed:
             return False
         if noun.lower_ in PLACE_NOUNS and lemma(root) in ARGUMENT_VERBS:
             return False
         return True
+    if tok.dep_ == "npadvmod" and tok.lower_ in TIME_ADVERBS and not list(tok.children):
+        return True  # "yesterday", tagged as a noun
     if tok.dep_ == "npadvmod" and tok.pos_ == "NOUN" and tok.lower_ in TIME_NOUNS:
         return any(c.lower_ in TIME_DETS or c.like_num for c in tok.children)
     if tok.dep_ == "advmod" and tok.pos_ == "ADV" and not list(tok.children):
@@ -347,11 +383,13 @@ def _adverbial(sent: "Span", ctx: Context) -> Iterator[Candidate]:
     root = sent.root
     if _is_question(sent) or root.pos_ not in ("VERB", "AUX"):
         return
-    if any(t.lower_ in NEGATORS or t.dep_ == "neg" or t.lower_ in FOCUS_WORDS for t in sent):
-        return
+    if any(t.lower_ in NEGATORS or t.dep_ == "neg" or t.lower_ in FOCUS_WORDS or (t.lower_ in CONTRAST and t.pos_ != "NOUN") for t in sent):
+        return  # scope: "didn't leak in the rain"; attachment: "stiff at first but comfortable after a week"
     subj = [c for c in root.children if c.dep_ in ("nsubj", "nsubjpass", "expl")]
     if len(subj) != 1:
         return  # imperatives and fragments
+    if any(c.dep_ == "conj" and c.pos_ in ("VERB", "AUX") for c in root.children):
+        return  # "At night, A and B": at the other end the phrase would cover only one conjunct
     subj = subj[0]
     last = _last_word(sent)
     if last < 0:
@@ -371,9 +409,7 @@ def _adverbial(sent: "Span", ctx: Context) -> Iterator[Candidate]:
             a = adv.left_edge.i
             prev = doc[a - 1]
             has_comma = prev.text == ","
-            if adv.lower_ in STANCE_ADVERBS and not has_comma:
-                pass  # "works honestly" would be a manner reading
-            elif a - (1 if has_comma else 0) > root.i or has_comma:
+            if not (adv.lower_ in STANCE_ADVERBS and not has_comma):  # "works honestly": a manner reading
                 cut = a - 1 if has_comma else a
                 moved = _span_text(doc, a, last + 1, initial=True, was_initial=False)
                 first = doc[sent.start]
@@ -444,6 +480,8 @@ def _clauses(sent: "Span", ctx: Context) -> Iterator[Candidate]:
         if not _stative(head):
             return
     words = [t for t in doc[sent.start : last + 1] if t.i != cc.i]
+    if any(t.is_punct and t.text not in ("-", "'") and t.i != end1 for t in words):
+        return  # a comma inside a clause ("..., which I like") would not travel well
     if any(t.lower_ in ANAPHORS or t.lower_ in SEQUENCE_WORDS for t in words):
         return
     c1 = _span_text(doc, cc.i + 1, last + 1, initial=True, was_initial=False)
@@ -470,13 +508,21 @@ def _stative(head: "Token") -> bool:
 # --- shuffle ---------------------------------------------------------------------------------
 
 
+def _glued(tok: "Token") -> bool:
+    """Part of a larger written word ("tent's", "fold-out"): moving it would split the word."""
+    doc = tok.doc
+    if not tok.whitespace_ and tok.i + 1 < len(doc) and doc[tok.i + 1].text[:1] not in PUNCT_CLOSE:
+        return True
+    return tok.i > 0 and not doc[tok.i - 1].whitespace_ and doc[tok.i - 1].text not in ("(", "[", '"', "“")
+
+
 def _shuffle(doc: "Doc", ctx: Context) -> Candidate | None:
     edits: list[TokenEdit] = []
     for sent in doc.sents:
         slots = [
             t for t in sent
             if t.pos_ in CONTENT_POS and not t.is_punct and t.lower_ not in NEGATORS and t.dep_ != "neg"
-            and t.text.isalnum()
+            and t.text.isalnum() and not _glued(t)
         ]
         if len({t.lower_ for t in slots}) < 2:
             continue

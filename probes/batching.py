@@ -81,7 +81,7 @@ def build_predictions(
         if isinstance(col, (str, bytes, Mapping)) or not hasattr(col, "__len__"):
             raise ModelError(f"{name} is {type(col).__name__}, expected a list with one entry per text")
         if len(col) != n:
-            raise ModelError(f"{len(col)} {name} for {n} texts; expected one per text")
+            raise ModelError(f"the output has {len(col)} {name} for {n} texts; expected one per text")
         cols[name] = col
     cls: list[str] | None = None
     if probabilities is not None:

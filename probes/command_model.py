@@ -54,7 +54,6 @@ import subprocess
 import threading
 import time
 import weakref
-from typing import Any
 
 from pairflip.probes.adapters import Model
 from pairflip.probes.batching import ModelError, build_predictions

@@ -7,6 +7,6 @@ __all__ = ["Example", "GroupStats", "Summary", "summarize", "render"]
 
 def render(summaries, console=None, **kwargs):
     """Render one summary (or a list, side by side) to a rich console."""
-    from pairflip.report.render import render as _render
+    from pairflip.report.terminal import render as _render
 
     return _render(summaries, console=console, **kwargs)

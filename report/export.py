@@ -31,7 +31,7 @@ import xml.etree.ElementTree as ET
 from typing import Any, Sequence
 
 from pairflip.report.diff import DEL, DEL_CLOSE, DEL_OPEN, INS, INS_CLOSE, INS_OPEN, join_chunks, word_diff
-from pairflip.report.render import describe_interval, header_facts, pct, short_rule, total_pairs, when
+from pairflip.report.terminal import describe_interval, header_facts, pct, short_rule, total_pairs, when
 from pairflip.report.summary import SUMMARY_VERSION, Example, GroupStats, Summary
 
 MULTI_KIND = "pairflip-summaries"

@@ -59,6 +59,16 @@ TOML_TABLE = "[tool.pairflip.gate]"
 TOML_KEYS = ("limits", "on", "alpha")
 
 
+class LimitSyntaxError(PairflipError):
+    """A malformed limit: the message echoes it with a caret under the bad token (three lines)."""
+
+    def __init__(self, text: str, column: int, what: str) -> None:
+        self.text = text
+        self.column = column  # 1-based
+        self.what = what
+        super().__init__(f"limit {text!r}: {what} at column {column}\n  {text}\n  {' ' * (column - 1)}^")
+
+
 @dataclass(frozen=True)
 class Limit:
     target: str  # "negation" or "negation/copula"
@@ -138,7 +148,7 @@ def parse_limit(text: str) -> Limit:
         raise PairflipError(f"a limit must be a string such as \"negation.violation <= 0.10\", got {type(text).__name__}")
 
     def fail(pos: int, what: str) -> PairflipError:
-        return PairflipError(f"limit {text!r}: {what} at column {pos + 1}\n  {text}\n  {' ' * pos}^")
+        return LimitSyntaxError(text, pos + 1, what)
 
     toks = _tokenize(text)
     i = 0

@@ -30,9 +30,9 @@ def _pct(x: float | None) -> str:
 def _p(x: float | None) -> str:
     if x is None:
         return "-"
-    if x < 1e-4:
+    if x < 1e-3:
         return f"{x:.1e}"
-    return f"{x:.4f}"
+    return f"{x:.3f}"
 
 
 def _row(t: Table, *cells: Any) -> None:
@@ -48,15 +48,14 @@ def limits_table(outcome: Any) -> Table:
     interval = "bootstrap over sources" if outcome.interval == "cluster-bootstrap" else "Wilson"
     t = Table(title=f"gate on {escape(outcome.model or 'model')}: judged on {_ON_WORDS.get(outcome.on, outcome.on)} ({interval})",
               title_justify="left", box=box.SIMPLE_HEAD)
-    widest = max((len(o.limit.text) for o in outcome.limits), default=5)
-    t.add_column("limit", no_wrap=True, min_width=widest)
-    t.add_column("pairs", justify="right")
-    t.add_column("rate", justify="right")
+    t.add_column("limit", overflow="fold")
+    t.add_column("n", justify="right", no_wrap=True)
+    t.add_column("rate", justify="right", no_wrap=True)
     t.add_column("95% CI", justify="right", no_wrap=True)
     judged = outcome.on != "point"
     if judged:
-        t.add_column(outcome.on, justify="right")
-    t.add_column("result", min_width=10)
+        t.add_column(outcome.on, justify="right", no_wrap=True)
+    t.add_column("result")
     for o in outcome.limits:
         if o.passed:
             result = Text("pass", style="green")
@@ -64,7 +63,7 @@ def limits_table(outcome: Any) -> Table:
             result = Text(f"FAIL: {o.note}", style="bold red")
         else:
             side = "over" if o.limit.op in ("<", "<=") else "under"
-            result = Text(f"FAIL: {100 * o.by:.1f} pts {side}", style="bold red")
+            result = Text(f"FAIL, {100 * o.by:.1f} pts {side}", style="bold red")
         cells: list[Any] = [o.limit.text, str(o.count), _pct(o.point), _interval(o.ci95)]
         if judged:
             cells.append(_pct(o.value))
@@ -84,7 +83,7 @@ def regressions_table(outcome: Any) -> Table:
     t.add_column("violations\nold -> new", justify="right", no_wrap=True)
     t.add_column("only\nold / new", justify="right", no_wrap=True)
     t.add_column("p (Holm)", justify="right", no_wrap=True)
-    t.add_column("result", min_width=10)
+    t.add_column("result")
     for r in outcome.regressions or []:
         fc = r.comparison
         if r.regressed:
@@ -136,18 +135,20 @@ def gate_text(outcome: Any, width: int = 120) -> str:
 def comparison_table(comp: Any) -> Table:
     old_name = escape(str(comp.old.get("name", "old")))
     new_name = escape(str(comp.new.get("name", "new")))
-    t = Table(title=f"compare: old {old_name}  vs  new {new_name} (exact McNemar, Holm-adjusted across families)",
+    t = Table(title=f"compare: old {old_name} vs new {new_name} (exact McNemar, Holm-adjusted across families)",
               title_justify="left", box=box.SIMPLE_HEAD)
-    for c, j in (("family", "left"), ("should", "left"), ("paired", "right"), ("old viol.", "right"),
-                 ("new viol.", "right"), ("old only", "right"), ("new only", "right"), ("both", "right"),
-                 ("p", "right"), ("p (Holm)", "right"), ("change", "left")):
-        t.add_column(c, justify=j)  # type: ignore[arg-type]
+    t.add_column("family", no_wrap=True)
+    t.add_column("pairs", justify="right", no_wrap=True)
+    t.add_column("violations\nold -> new", justify="right", no_wrap=True)
+    t.add_column("only\nold / new", justify="right", no_wrap=True)
+    t.add_column("p", justify="right", no_wrap=True)
+    t.add_column("p (Holm)", justify="right", no_wrap=True)
+    t.add_column("change")
     for fam, fc in comp.families.items():
         style = {"worse": "red", "better": "green"}.get(fc.direction, "")
-        _row(t, fam, fc.should, str(fc.paired), f"{fc.old_violations} ({_pct(fc.old_rate)})",
-                  f"{fc.new_violations} ({_pct(fc.new_rate)})", str(fc.only_old), str(fc.only_new),
-                  str(fc.both), _p(fc.p_value), _p(fc.p_holm),
-                  Text(fc.direction if fc.p_value is not None else "no applicable pairs", style=style))
+        _row(t, fam, str(fc.paired), f"{fc.old_violations} -> {fc.new_violations}",
+             f"{fc.only_old} / {fc.only_new}", _p(fc.p_value), _p(fc.p_holm),
+             Text(fc.direction if fc.p_value is not None else "no applicable pairs", style=style))
     return t
 
 
@@ -155,12 +156,14 @@ def broken_examples(comp: Any, examples: int) -> RenderableType | None:
     rows = [(fam, b) for fam, fc in comp.families.items() for b in fc.newly_broken[: max(0, examples)]]
     if not rows:
         return None
-    t = Table(title="newly broken pairs (violated by the new model only)", title_justify="left", show_lines=True, box=box.SIMPLE_HEAD)
-    for c in ("rule", "should", "source -> variant", "old", "new"):
-        t.add_column(c)
+    t = Table(title="newly broken pairs (violated by the new model only)", title_justify="left", show_lines=True,
+              box=box.SIMPLE_HEAD)
+    t.add_column("rule / should", no_wrap=True)
+    t.add_column("source -> variant", ratio=1)
+    t.add_column("labels", no_wrap=True)
     for _fam, b in rows:
-        _row(t, b.rule, b.should, f"{b.source}\n-> {b.variant}",
-                  f"{b.old_source_pred} -> {b.old_variant_pred}", f"{b.new_source_pred} -> {b.new_variant_pred}")
+        _row(t, f"{b.rule}\n{b.should}", f"{b.source}\n-> {b.variant}",
+             f"old {b.old_source_pred} -> {b.old_variant_pred}\nnew {b.new_source_pred} -> {b.new_variant_pred}")
     return t
 
 

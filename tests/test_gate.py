@@ -168,7 +168,7 @@ def test_table_says_which_limit_failed_and_by_how_much():
     out = run_gate(res, ["negation.violation <= 0.10", "reorder/shuffle.flip <= 50%"])
     text = gate_text(out)
     assert "negation.violation <= 0.10" in text
-    assert "FAIL: 20.0 pts over" in text and "30.0%" in text
+    assert "FAIL, 20.0 pts over" in text and "30.0%" in text
     assert "pass" in text
     assert "gate FAILED: 1 of 2 limits crossed" in text
     assert "\x1b[" not in text  # plain text
@@ -271,7 +271,8 @@ def _cli(args, cwd=None, monkeypatch=None):
 
     from pairflip.cli import app
 
-    return CliRunner().invoke(app, args)
+    # a wide console, as in a CI log viewer, so table cells are not wrapped mid-limit
+    return CliRunner().invoke(app, args, env={"COLUMNS": "150"})
 
 
 def test_cli_gate_exit_codes(tmp_path, monkeypatch):

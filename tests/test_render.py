@@ -126,7 +126,7 @@ def test_rendered_numbers_are_the_summary_numbers_and_match_statsmodels_wilson()
 
 
 def test_bar_draws_the_interval_from_data() -> None:
-    from pairflip.report.render import UNICODE, bar
+    from pairflip.report.terminal import UNICODE, bar
 
     b = bar(0.25, (0.10, 0.50), 20, UNICODE).plain
     assert len(b) == 20

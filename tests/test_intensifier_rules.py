@@ -1,0 +1,218 @@
+"""Table-driven tests of the intensifier rules: source -> the exact set of valid variants per rule.
+
+Grammar facts the tables rely on (handbook facts of English grammar, quoted from memory):
+* Extreme ("non-gradable" or "limit") adjectives such as perfect, excellent, useless, amazing do
+  not take the scaling amplifier *very* or the downtoner *slightly*; they take maximizers such as
+  *absolutely*, *utterly*, *totally* (Quirk et al. 1985, A Comprehensive Grammar of the English
+  Language, 7.3 and 8.104 on gradability and maximizers; Biber et al. 1999, Longman Grammar of
+  Spoken and Written English, 7.7 on degree adverbs) — from memory.
+* The indefinite article is *an* before a vowel sound and *a* before a consonant sound, decided by
+  the word that directly follows it ("an excellent tent", "a very easy setup") — handbook fact.
+* Downtoners like *a bit* / *slightly* favour undesirable qualities ("a bit noisy"); *a bit* is a
+  noun phrase and cannot stand before an attributive adjective (*"a bit noisy stove") — from
+  memory (Quirk et al. 1985, ch. 8 on downtoners).
+"""
+
+from __future__ import annotations
+
+import random
+
+import pytest
+
+from pairflip.perturb import intensifier
+from pairflip.perturb.base import Context, apply_edits, validate
+from pairflip.perturb.lexicon import load_lexicon
+from pairflip.perturb.nlp import load_nlp
+
+AMP, SOFT, REM = "intensifier/amplify", "intensifier/soften", "intensifier/remove"
+
+
+@pytest.fixture(scope="module")
+def nlp():
+    return load_nlp()
+
+
+@pytest.fixture(scope="module")
+def lex():
+    return load_lexicon()
+
+
+def variants(nlp, lex, text: str, seed: int = 0) -> dict[str, set[str]]:
+    """rule -> the set of variants that survive validation (as the build keeps them)."""
+    doc = nlp(text)
+    out: dict[str, set[str]] = {}
+    ctx = Context(lexicon=lex, rng=random.Random(seed), seed=seed)
+    for cand in intensifier.candidates(doc, ctx):
+        variant, _ = apply_edits(doc, cand.edits)
+        if validate(doc, cand, variant) is None:
+            out.setdefault(cand.rule, set()).add(variant)
+    return out
+
+
+# (source, rule, exact set of variants); an empty set means "no variant".
+CASES = [
+    # insertion on gradable adjectives, predicative and attributive
+    ("The tent is roomy.", AMP, {"The tent is very roomy."}),
+    ("The tent is roomy.", SOFT, {"The tent is fairly roomy."}),
+    ("The tent is roomy.", REM, set()),
+    ("The zippers feel flimsy.", AMP, {"The zippers feel very flimsy."}),
+    ("The zippers feel flimsy.", SOFT, {"The zippers feel a bit flimsy."}),  # unfavourable, predicative
+    ("An ugly color.", SOFT, {"A slightly ugly color."}),  # unfavourable, attributive: never "a bit"
+    ("The boots are stiff.", SOFT, {"The boots are a bit stiff."}),
+    # manner adverbs
+    ("It lights reliably.", AMP, {"It lights very reliably."}),
+    ("It lights reliably.", SOFT, {"It lights fairly reliably."}),
+    ("The new fly flaps loudly.", SOFT, {"The new fly flaps somewhat loudly."}),
+    ("The pack fits well.", AMP, {"The pack fits very well."}),
+    # swaps between softener and amplifier
+    ("The stove is slightly noisy.", AMP, {"The stove is very noisy."}),
+    ("The stove is slightly noisy.", SOFT, set()),  # no stacking: "slightly" is already there
+    ("The stove is a bit noisy.", AMP, {"The stove is very noisy."}),
+    ("The chair is very comfortable.", SOFT, {"The chair is fairly comfortable."}),
+    ("The chair is very comfortable.", AMP, set()),  # no "very very"
+    # removal
+    ("The chair is very comfortable.", REM, {"The chair is comfortable."}),
+    ("I really love it.", REM, {"I love it."}),
+    ("I really love it.", AMP, set()),
+    ("I would highly recommend this stove.", REM, {"I would recommend this stove."}),
+    ("The pan is incredibly easy to clean.", REM, {"The pan is easy to clean."}),
+    ("The pan is incredibly easy to clean.", SOFT, {"The pan is fairly easy to clean."}),
+    ("Very comfortable chair.", REM, {"Comfortable chair."}),  # capital moves to the new first word
+    ("Absolutely brilliant little stove.", REM, {"Brilliant little stove."}),
+    # extreme adjectives: only absolutely/utterly, never softened
+    ("An excellent tent.", AMP, {"An absolutely excellent tent."}),
+    ("An excellent tent.", SOFT, set()),
+    ("The stakes are useless.", AMP, {"The stakes are utterly useless."}),
+    ("The stakes are useless.", SOFT, set()),
+    ("The lantern was truly amazing.", REM, {"The lantern was amazing."}),
+    ("The lantern was truly amazing.", SOFT, set()),
+    ("The stove is great.", AMP, {"The stove is absolutely great."}),
+    ("Perfect.", AMP, {"Absolutely perfect."}),
+    ("The zipper is broken.", AMP, set()),  # not gradable: "very broken" is odd
+    # articles
+    ("An easy setup.", AMP, {"A very easy setup."}),
+    ("An easy setup.", SOFT, {"A fairly easy setup."}),
+    ("A very easy setup.", REM, {"An easy setup."}),
+    ("A roomy tent with an easy setup.", AMP, {"A very roomy tent with an easy setup.", "A roomy tent with a very easy setup."}),
+    ("An awful stove.", AMP, {"An utterly awful stove."}),
+    ("A really ugly color.", REM, {"An ugly color."}),
+    # negated scope, questions, hypotheticals, contrasts: skipped
+    ("The chair is not very comfortable.", REM, set()),
+    ("The chair is not very comfortable.", SOFT, set()),
+    ("The tent is not roomy.", AMP, set()),
+    ("The stove never works reliably.", AMP, set()),
+    ("Is the tent comfortable?", AMP, set()),
+    ("I wish it were roomy.", AMP, set()),
+    ("The tent is roomy but heavy.", AMP, set()),
+    ("The stove is somewhat noisy, but it's very fast.", REM, set()),
+    # comparatives, superlatives, other degree words, exclamatives
+    ("This jacket is lighter than my old one.", AMP, set()),
+    ("The best stove I have owned.", AMP, set()),
+    ("The jacket is too warm for summer.", AMP, set()),
+    ("The jacket is warm enough.", AMP, set()),
+    ("The jacket is as warm as my old one.", AMP, set()),
+    ("The jacket is very, very warm.", REM, set()),
+    ("What a great lantern!", AMP, set()),
+    ("It works perfectly.", AMP, set()),  # "perfectly" is itself a degree word
+    ("The tent stays surprisingly cool.", AMP, set()),  # already modified by an adverb
+    # hendiadys, repeated stems, curly apostrophes, several sentences
+    ("Nice and light!", AMP, set()),  # "nice and light" = pleasantly light
+    ("The price was fair.", SOFT, {"The price was somewhat fair."}),  # not "fairly fair"
+    ("I’m very happy with it.", REM, {"I’m happy with it."}),
+    ("I love this tent. The poles are light.", AMP, {"I love this tent. The poles are very light."}),
+    # only opinion words about the product: weather and ground are left alone
+    ("The tips skate on wet granite.", AMP, set()),
+    ("The tent is green.", AMP, set()),
+    ("The pack fits my back perfectly after a couple of quick adjustments.", AMP, set()),
+    ("A pair of sturdy boots.", AMP, {"A pair of very sturdy boots."}),
+]
+
+
+@pytest.mark.parametrize("source,rule,expected", CASES, ids=[f"{r.split('/')[1]}:{s}" for s, r, _ in CASES])
+def test_case(nlp, lex, source, rule, expected):
+    assert variants(nlp, lex, source).get(rule, set()) == expected
+
+
+def test_meta_records_the_operation(nlp, lex):
+    doc = nlp("The stove is slightly noisy.")
+    ctx = Context(lexicon=lex, rng=random.Random(0))
+    (cand,) = [c for c in intensifier.candidates(doc, ctx) if c.rule == AMP]
+    assert cand.should == "strengthen"
+    assert cand.meta["op"] == "swap" and cand.meta["removed"] == "slightly" and cand.meta["word"] == "very"
+
+
+def test_rules_expectations():
+    assert intensifier.RULES == {AMP: "strengthen", SOFT: "weaken", REM: "weaken"}
+
+
+@pytest.mark.parametrize(
+    "word,article",
+    [("easy", "an"), ("very", "a"), ("absolutely", "an"), ("utterly", "an"), ("useful", "a"),
+     ("honest", "an"), ("hour", "an"), ("one", "a"), ("roomy", "a"), ("ugly", "an")],
+)
+def test_indefinite_article(word, article):
+    # handbook fact: the article follows the sound of the next word, not its spelling
+    assert intensifier.indefinite_article(word) == article
+
+
+def test_inserted_words_are_in_the_lexicon(lex):
+    kinds = lex.intensifiers
+    assert kinds[intensifier.AMPLIFIER] == "amplifier"
+    assert {kinds[w] for w in intensifier.EXTREME_AMPLIFIER.values()} == {"extreme-amplifier"}
+    for w in (intensifier.SOFTENER_FAVOURABLE, intensifier.SOFTENER_PREDICATIVE,
+              intensifier.SOFTENER_ATTRIBUTIVE, intensifier.SOFTENER_ADVERB):
+        assert kinds[w] == "softener"
+
+
+def test_intensifier_kinds_agree_with_vader_boosters(lex):
+    # External check: VADER's booster dictionary (vaderSentiment 3.3.2, BOOSTER_DICT in
+    # vaderSentiment/vaderSentiment.py; Hutto & Gilbert 2014) marks amplifiers with a positive
+    # increment and downtoners with a negative one. Our kinds must agree wherever both list a word.
+    from vaderSentiment.vaderSentiment import BOOSTER_DICT
+
+    shared = [w for w in lex.intensifiers if w in BOOSTER_DICT]
+    assert len(shared) >= 15
+    for w in shared:
+        sign = 1 if lex.intensifiers[w] in ("amplifier", "extreme-amplifier") else -1
+        assert BOOSTER_DICT[w] * sign > 0, w
+
+
+def test_vader_agrees_with_the_expectations(nlp, lex):
+    # External check: VADER's rule-based scores (vaderSentiment 3.3.2, SentimentIntensityAnalyzer)
+    # move the way our expectation says: |compound| up for strengthen, down for weaken. Only pairs
+    # whose inserted and removed degree words VADER knows are judged ("fairly" is not a VADER
+    # booster, so VADER cannot see it).
+    from vaderSentiment.vaderSentiment import BOOSTER_DICT, SentimentIntensityAnalyzer
+
+    sia = SentimentIntensityAnalyzer()
+    sources = ["The tent is comfortable.", "The stove is noisy.", "The chair is very comfortable.",
+               "The staff were slightly rude.", "The boots are ugly.", "The lantern is really nice.",
+               "The stove is somewhat slow.", "The strap is extremely uncomfortable.", "I really love it."]
+    checked = 0
+    for src in sources:
+        doc = nlp(src)
+        s = abs(sia.polarity_scores(src)["compound"])
+        if s == 0:  # VADER does not know the opinion word ("slow")
+            continue
+        for cand in intensifier.candidates(doc, Context(lexicon=lex, rng=random.Random(0))):
+            words = [cand.meta.get("word"), cand.meta.get("removed")]
+            if any(w is not None and w not in BOOSTER_DICT for w in words):
+                continue
+            v, _ = apply_edits(doc, cand.edits)
+            assert validate(doc, cand, v) is None
+            d = abs(sia.polarity_scores(v)["compound"])
+            if cand.should == "strengthen":
+                assert d > s, (src, v)
+            else:
+                assert d < s, (src, v)
+            checked += 1
+    assert checked >= 8
+
+
+def test_deterministic_for_a_seed(nlp, lex):
+    doc = nlp("The tent is roomy and the poles are sturdy.")
+    runs = []
+    for _ in range(2):
+        ctx = Context(lexicon=lex, rng=random.Random(7), seed=7)
+        runs.append([(c.rule, c.edits) for c in intensifier.candidates(doc, ctx)])
+    assert runs[0] == runs[1] and runs[0]

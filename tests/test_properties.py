@@ -1,0 +1,218 @@
+"""Property-based tests of every rule of every family (hypothesis).
+
+Fed arbitrary Unicode (control characters, emoji, right-to-left text, combining marks) and random
+real-looking English review sentences, the build driver must never hit a rule error, and every pair
+it yields must hold these invariants:
+
+- the variant differs from its source, and the source is the input text;
+- family, rule and expectation are the ones the family module declares;
+- reorder rules keep the multiset of words (pairflip.perturb.base.words);
+- the stored edits are character spans on the source: applied from the last to the first, they
+  turn the source into the variant.
+"""
+
+from __future__ import annotations
+
+from collections import Counter
+
+import pytest
+from hypothesis import HealthCheck, given, settings
+from hypothesis import strategies as st
+
+from pairflip.perturb.base import TokenEdit, apply_edits, words
+from pairflip.perturb.build import BuildStats, iter_pairs, known_rules
+from pairflip.perturb.lexicon import load_lexicon
+from pairflip.records import Edit
+
+# database=None: no .hypothesis/ folder in the tree; a failure prints its example (and a blob to replay it).
+SETTINGS = dict(deadline=None, database=None, print_blob=True,
+                suppress_health_check=[HealthCheck.too_slow, HealthCheck.data_too_large])
+
+
+@pytest.fixture(scope="module")
+def lexicon():
+    return load_lexicon()
+
+
+def replay(source: str, edits: list[Edit]) -> str:
+    """Apply character edits to ``source`` from the last to the first."""
+    out = source
+    for e in sorted(edits, key=lambda e: (e.start, e.end), reverse=True):
+        out = out[: e.start] + e.text + out[e.end :]
+    return out
+
+
+def check_build(texts: list[str], nlp, lexicon, families=None) -> list:
+    stats = BuildStats()
+    pairs = list(iter_pairs(texts, families=families, seed=0, nlp=nlp, lexicon=lexicon, stats=stats))
+    errors = {rule: dict(c) for rule, c in stats.dropped.items() if any("rule error" in r for r in c)}
+    assert not errors, f"rule errors on {texts!r}: {errors}"
+    known = known_rules()
+    inputs = {t.strip() for t in texts}
+    for p in pairs:
+        assert p.family in known, p
+        assert p.rule in known[p.family], p
+        assert p.should == known[p.family][p.rule], p
+        assert p.source in inputs, p
+        assert p.variant != p.source, p
+        assert p.variant.strip(), p
+        if p.family == "reorder":
+            assert Counter(words(p.variant)) == Counter(words(p.source)), (p.rule, p.source, p.variant)
+        got = replay(p.source, p.edits)
+        assert got == p.variant, (
+            f"{p.rule}: edits {[e.to_dict() for e in p.edits]} on {p.source!r} give {got!r}, "
+            f"but the variant is {p.variant!r}"
+        )
+    return pairs
+
+
+# --------------------------------------------------------------------------- strategies
+
+# Invented outdoor-gear shop reviews, composed from word lists.
+SUBJECTS = ["the tent", "this stove", "the sleeping bag", "my lantern", "the backpack", "these boots", "it",
+            "the water filter", "our hammock", "the jacket", "the poles", "they", "the zipper", "the cooler"]
+PLURAL = {"these boots", "the poles", "they"}
+BE = {"present": ("is", "are"), "past": ("was", "were")}
+ADJS = ["roomy", "sturdy", "comfortable", "reliable", "flimsy", "heavy", "bright", "warm", "noisy", "cheap",
+        "useful", "awkward", "great", "terrible", "perfect", "awful", "happy", "clean", "dirty", "safe", "easy"]
+DEGREE = ["", "very ", "quite ", "really ", "slightly ", "extremely ", "pretty ", "a bit ", "absolutely "]
+NEG = ["", "not ", "never "]
+VERBS_3SG = ["works", "leaks", "holds up", "breaks", "fits", "feels solid", "smells", "keeps me warm"]
+VERBS_PL = ["work", "leak", "hold up", "break", "fit", "feel solid", "smell", "keep me warm"]
+VERBS_PAST = ["worked", "leaked", "held up", "broke", "fitted", "felt solid", "smelled", "kept me warm"]
+MODALS = ["will", "can", "should", "would", "might"]
+ADVERBIALS = ["", " after a week of rain", " on the trail", " for the price", " in cold weather", " honestly",
+              " at night", " every time"]
+OPENERS = ["", "Honestly, ", "Overall ", "After two trips, ", "I think ", "Sadly, ", "Luckily "]
+CLOSERS = [".", "!", "...", " :)", "", "?", "!!"]
+JOIN = [" and ", " but ", ", and ", ", but ", " because ", " so ", "; "]
+
+
+@st.composite
+def clause(draw) -> str:
+    subj = draw(st.sampled_from(SUBJECTS))
+    plural = subj in PLURAL
+    kind = draw(st.sampled_from(["be", "verb", "past", "modal", "contraction", "like"]))
+    adj = draw(st.sampled_from(DEGREE)) + draw(st.sampled_from(ADJS))
+    adv = draw(st.sampled_from(ADVERBIALS))
+    if kind == "be":
+        tense = draw(st.sampled_from(["present", "past"]))
+        be = BE[tense][plural]
+        return f"{subj} {be} {draw(st.sampled_from(NEG))}{adj}{adv}"
+    if kind == "verb":
+        verb = draw(st.sampled_from(VERBS_PL if plural else VERBS_3SG))
+        return f"{subj} {verb} {draw(st.sampled_from(['', 'well ', 'badly ', 'really well ']))}{adv}".rstrip()
+    if kind == "past":
+        return f"{subj} {draw(st.sampled_from(VERBS_PAST))}{adv}"
+    if kind == "modal":
+        return f"{subj} {draw(st.sampled_from(MODALS))} {draw(st.sampled_from(['', 'not ']))}be {adj}{adv}"
+    if kind == "contraction":
+        aux = draw(st.sampled_from(["isn't", "wasn't", "doesn't look", "won't be", "can't be"] if not plural
+                                   else ["aren't", "weren't", "don't look", "won't be", "can't be"]))
+        return f"{subj} {aux} {adj}{adv}"
+    verb = draw(st.sampled_from(["like", "love", "hate", "don't like", "really enjoy", "would recommend"]))
+    return f"I {verb} {subj if subj not in ('it', 'they') else 'it'}{adv}"
+
+
+@st.composite
+def review(draw) -> str:
+    parts = [draw(clause())]
+    for _ in range(draw(st.integers(0, 2))):
+        parts.append(draw(st.sampled_from(JOIN)) + draw(clause()))
+    text = draw(st.sampled_from(OPENERS)) + "".join(parts) + draw(st.sampled_from(CLOSERS))
+    style = draw(st.sampled_from(["sentence", "sentence", "sentence", "lower", "upper"]))
+    if style == "sentence":
+        text = text[:1].upper() + text[1:]
+    elif style == "upper":
+        text = text.upper()
+    return text
+
+
+@st.composite
+def reviews(draw) -> str:
+    """One to three review sentences in one text."""
+    return " ".join(draw(st.lists(review(), min_size=1, max_size=3)))
+
+
+# Unicode with the awkward parts made likely: controls, emoji, RTL, combining marks, odd spaces.
+AWKWARD = st.sampled_from(
+    ["\x00", "\x07", "\x1b", "\t", "\r", "\x0b", "\x0c", "\x85", "\u2028", "\u2029", "\u200b", "\u200d", "\ufeff",
+     "\u202e", "\u202c", "\u0301", "\u0308", "\u20dd", "\U0001F44D", "\U0001F3D5\ufe0f", "\U0001F468\u200d\U0001F469",
+     "\u05e9\u05dc\u05d5\u05dd", "\u0645\u0631\u062d\u0628\u0627", "\u00a0", "\u3000", "n't", "'s", " not ", "  ",
+     " very ", " and ", ", but ", ".", "!", "?", "\u2019"]
+)
+UNICODE_TEXT = st.lists(st.one_of(st.text(max_size=12), AWKWARD, st.sampled_from(ADJS + SUBJECTS)), max_size=12).map("".join)
+
+
+# --------------------------------------------------------------------------- the properties
+
+
+@settings(max_examples=1000, **SETTINGS)
+@given(texts=st.lists(UNICODE_TEXT, min_size=1, max_size=3))
+def test_arbitrary_unicode_never_breaks_a_rule(nlp, lexicon, texts):
+    check_build(texts, nlp, lexicon)
+
+
+@settings(max_examples=300, **SETTINGS)
+@given(text=st.text(min_size=1, max_size=200))
+def test_plain_hypothesis_text_never_breaks_a_rule(nlp, lexicon, text):
+    check_build([text], nlp, lexicon)
+
+
+@settings(max_examples=1000, **SETTINGS)
+@given(texts=st.lists(reviews(), min_size=1, max_size=3))
+def test_review_sentences_keep_the_invariants(nlp, lexicon, texts):
+    check_build(texts, nlp, lexicon)
+
+
+@settings(max_examples=100, **SETTINGS)
+@given(texts=st.lists(reviews(), min_size=1, max_size=4))
+def test_same_seed_same_pairs(nlp, lexicon, texts):
+    a = [p.to_dict() for p in iter_pairs(texts, seed=3, nlp=nlp, lexicon=lexicon)]
+    b = [p.to_dict() for p in iter_pairs(texts, seed=3, nlp=nlp, lexicon=lexicon)]
+    assert a == b
+
+
+@st.composite
+def doc_and_edits(draw, nlp):
+    text = draw(st.one_of(reviews(), UNICODE_TEXT.filter(lambda t: t.strip())))
+    doc = nlp.make_doc(text)  # apply_edits needs tokens and their offsets only
+    n = len(doc)
+    if n == 0:
+        return doc, ()
+    # Non-overlapping token spans: cut points over 0..n, take some gaps as edits.
+    cuts = sorted(draw(st.sets(st.integers(0, n), min_size=1, max_size=min(n + 1, 6))))
+    edits = []
+    for a, b in zip(cuts, cuts[1:] + [cuts[-1]]):
+        if draw(st.booleans()):
+            new = draw(st.sampled_from(["", "not", "very", "really", "never", ",", ".", "is not", "do not like",
+                                        "Not", "it", "and", "n't", "\U0001F44D"]))
+            if a == b and new == "":
+                continue
+            edits.append(TokenEdit(a, b if b > a else a, new))
+    # insertions must not sit inside a replaced span
+    spans = [(e.start, e.end) for e in edits if e.end > e.start]
+    edits = [e for e in edits if e.end > e.start or not any(s < e.start < t for s, t in spans)]
+    return doc, tuple(edits)
+
+
+def test_apply_edits_spans_replay_to_the_variant(nlp):
+    """The shared edit applier on its own: the char edits it returns must rebuild the variant."""
+
+    @settings(max_examples=1200, **SETTINGS)
+    @given(data=st.data())
+    def run(data):
+        doc, edits = data.draw(doc_and_edits(nlp))
+        if not edits:
+            return
+        try:
+            variant, char_edits = apply_edits(doc, edits)
+        except ValueError:
+            return  # overlapping edits are refused, which is allowed
+        got = replay(doc.text, char_edits)
+        assert got == variant, (
+            f"apply_edits on {doc.text!r} with {edits}: char edits {[e.to_dict() for e in char_edits]} "
+            f"replay to {got!r}, but the variant is {variant!r}"
+        )
+
+    run()
