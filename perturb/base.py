@@ -147,32 +147,60 @@ def apply_edits(doc: "Doc", edits: tuple[TokenEdit, ...] | list[TokenEdit]) -> t
         if s2 < t1:
             raise ValueError("token edits overlap")
 
-    out: list[str] = []
-    char_edits: list[Edit] = []
+    # Segments: ("keep", start, end, text) for untouched source text, ("edit", start, end, text)
+    # for replacements. Every fix below changes an edit's text or span, never the kept text, so
+    # the stored character edits replay exactly to the variant.
+    segs: list[list[Any]] = []
     cursor = 0
     for s, t, new in spans:
         before = text[cursor:s]
-        if new[:1] in PUNCT_CLOSE and before.endswith(" ") and not (s, t) == (s, s):
+        if new[:1] in PUNCT_CLOSE and before.endswith(" ") and s != t:
             # "great , and" -> "great, and" when an edit starts with punctuation
             stripped = before.rstrip(" ")
             s -= len(before) - len(stripped)
             before = stripped
-        out.append(before)
-        out.append(new)
-        char_edits.append(Edit(s, t, new))
+        if before:
+            segs.append(["keep", cursor, s, before])
+        prev = segs[-1][3] if segs else ""
+        if new.startswith(" ") and (prev.endswith(" ") or not prev):
+            new = new.lstrip(" ")  # no double space (or leading space) at the join
+        segs.append(["edit", s, t, new])
         cursor = t
-    out.append(text[cursor:])
-    variant = "".join(out)
-    # Collapse double spaces created at a join (never those the source already had).
-    if "  " in variant and "  " not in text:
-        variant = re.sub(r" {2,}", " ", variant)
-    variant = variant.strip() if not text[:1].isspace() and not text[-1:].isspace() else variant
-    if _starts_upper(text) and not _starts_upper(variant):
-        for i, ch in enumerate(variant):
-            if ch.isalpha():
-                variant = variant[:i] + ch.upper() + variant[i + 1 :]
-                break
+    if cursor < len(text):
+        segs.append(["keep", cursor, len(text), text[cursor:]])
+    for i, seg in enumerate(segs):  # an edit ending in a space before a space, or at the end
+        if seg[0] == "edit" and seg[3].endswith(" "):
+            nxt = segs[i + 1][3] if i + 1 < len(segs) else ""
+            if not nxt or nxt[:1].isspace():
+                seg[3] = seg[3].rstrip(" ")
+    if _starts_upper(text):
+        _capitalise_start(segs)
+    variant = "".join(seg[3] for seg in segs)
+    char_edits = [Edit(a, b, t) for kind, a, b, t in segs if kind == "edit"]
     return variant, char_edits
+
+
+def _capitalise_start(segs: list[list[Any]]) -> None:
+    """Give the first letter a capital, recording the change as (part of) an edit."""
+    for i, seg in enumerate(segs):
+        kind, a, b, t = seg
+        for j, ch in enumerate(t):
+            if not ch.isalpha():
+                continue
+            if ch.isupper():
+                return
+            if kind == "edit":
+                seg[3] = t[:j] + ch.upper() + t[j + 1 :]
+                return
+            # split the kept text: [a, a+j) kept, one capitalised character as an edit, rest kept
+            pieces = []
+            if j:
+                pieces.append(["keep", a, a + j, t[:j]])
+            pieces.append(["edit", a + j, a + j + 1, ch.upper()])
+            if j + 1 < len(t):
+                pieces.append(["keep", a + j + 1, b, t[j + 1 :]])
+            segs[i : i + 1] = pieces
+            return
 
 
 _WORD = re.compile(r"[^\W_]+(?:['’][^\W_]+)*", re.UNICODE)

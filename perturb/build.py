@@ -131,7 +131,8 @@ def iter_pairs(
             stats.sources += 1
             if len(st.text) > max_len:
                 stats.skipped["longer than the spaCy pipeline's max_length"] += 1
-                stats.warnings.append(f"{st.where}: skipped a text of {len(st.text)} characters (max {max_len})")
+                if len(stats.warnings) < 20:  # the count is in stats.skipped; keep only the first few
+                    stats.warnings.append(f"{st.where}: skipped a text of {len(st.text)} characters (max {max_len})")
                 continue
             yield st.text, st
 

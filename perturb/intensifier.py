@@ -98,7 +98,7 @@ EXCLAMATIVE = frozenset({"what", "such", "quite", "rather"})
 def candidates(doc: "Doc", ctx: Context) -> Iterator[Candidate]:
     """Every intensifier edit the parse supports, in text order."""
     lex = ctx.lexicon
-    if any(t.lower_ in CONTRAST for t in doc):
+    if any(t.lower_ in CONTRAST and t.pos_ != "NOUN" for t in doc):  # "after a while" is no contrast
         return
     degree = _degree_phrases(lex)
     targets = [(tok, hit) for tok in doc for hit in [_target(tok, lex)] if hit is not None]

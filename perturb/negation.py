@@ -15,15 +15,24 @@ Rules:
 * ``negation/modal``      — have/has/had as auxiliaries and the modals: will -> won't, can -> cannot
 * ``negation/do-support`` — a lexical verb gets *do*: loves -> doesn't love, broke -> didn't break
 * ``negation/removal``    — isn't -> is, didn't like -> liked, can't -> can, never -> (dropped)
+* ``negation/fragment``   — a sentence without a finite verb: "Great tent." -> "Not a great tent.",
+  "Very comfortable." -> "Not very comfortable.", "Poor quality." -> "Not poor quality.",
+  "Best stove out there." -> "Not the best stove out there.", "Not bad." -> "Bad."
+
+Subject-dropped clauses of review style count as clauses when their verb cannot be an imperative
+("Works great." -> "Doesn't work great.", "Would recommend." -> "Wouldn't recommend."). Social-media
+tokens (@mentions, #hashtags, links, emoticons) are left untouched and never count as words of a
+clause.
 """
 
 from __future__ import annotations
 
+import re
 from dataclasses import dataclass, field
 from typing import TYPE_CHECKING, Iterator
 
 from pairflip.perturb import grammar as g
-from pairflip.perturb.base import Candidate, Context, TokenEdit, lemma, match_case
+from pairflip.perturb.base import NEGATORS, Candidate, Context, TokenEdit, lemma, match_case
 
 if TYPE_CHECKING:  # pragma: no cover
     from spacy.tokens import Doc, Token
@@ -36,6 +45,7 @@ RULES = {
     "negation/modal": "flip",
     "negation/do-support": "flip",
     "negation/removal": "flip",
+    "negation/fragment": "flip",
 }
 
 # Default when the text shows no contraction style of its own (reviews are informal).
@@ -84,6 +94,21 @@ _COND_MARKS = {"if", "unless", "whenever", "whether"}
 _RAISING = {"seem", "appear", "tend", "continue", "keep", "happen", "prove", "turn", "start", "begin"}
 
 
+# @mentions, #hashtags, links and emoticons: kept as they are, never part of a clause.
+_NOISE = re.compile(
+    r"^(?:[@#]\w\S*|https?://\S*|www\.\S+|\S+\.(?:com|ly|net|org|co)(?:/\S*)?|"
+    r"[:;=8xX][-o'^]?[()DPpOo3\]\[/\\|*@$]+|[()\]\[][-o']?[:;=]|<3+|\^_*\^|-_+-|[xX][dD])$"
+)
+
+
+def is_noise(tok: "Token") -> bool:
+    """A social-media token that is no word of the sentence: @user, #tag, a link, an emoticon."""
+    t = tok.text
+    if _NOISE.match(t) or tok.like_url or t.lower() == "rt":
+        return True
+    return not any(ch.isalnum() for ch in t) and len(t) > 1 and not set(t) <= set(".!?-,;:'\"*")
+
+
 @dataclass
 class Clause:
     head: "Token"                      # the predicate (lexical verb, or the copula)
@@ -94,6 +119,7 @@ class Clause:
     negs: list["Token"] = field(default_factory=list)
     other_negs: list["Token"] = field(default_factory=list)
     nonfinite_opinion: bool = False    # an opinion word in a non-finite adverbial (unsure)
+    dropped_subject: bool = False      # "Works great.", "Would recommend."
 
     @property
     def negated(self) -> bool:
@@ -105,6 +131,17 @@ class Analysis:
     clauses: list[Clause]              # the clauses that carry an opinion
     unsure: str | None                 # why the text must not be touched, or None
     others: list[Clause] = field(default_factory=list)  # finite clauses without an opinion word
+    fragments: list["Fragment"] = field(default_factory=list)  # verbless opinion sentences
+
+
+@dataclass
+class Fragment:
+    """A sentence without a finite verb that carries an opinion, with the edits that toggle it."""
+
+    root: "Token"
+    edits: list[TokenEdit]
+    inserted: int
+    removed: int
 
 
 def opinion_of(tok: "Token", lexicon: "Lexicon"):
@@ -117,11 +154,24 @@ def opinion_of(tok: "Token", lexicon: "Lexicon"):
     if g.norm(tok.text) == "like" and pos != "VERB":
         return None
     hit = lexicon.lookup(lemma(tok).lower(), pos) or lexicon.lookup(g.norm(tok.text), pos)
+    if hit is None and pos == "NOUN" and g.norm(tok.text) not in _AMBIGUOUS_ADJ and not any(
+        c.dep_ in ("det", "poss", "nummod", "amod", "compound") for c in tok.children
+    ):  # "AWESOME!", "so stupid": an adjective the tagger read as a (proper) noun
+        hit = lexicon.lookup(g.norm(tok.text), "ADJ")
     if hit is None and pos == "VERB" and tok.tag_ == "VBN" and (
         tok.dep_ == "acomp" or any(c.dep_ == "auxpass" for c in tok.children)
     ):  # "I was impressed / disappointed" (passive), not "I have worn"
         hit = lexicon.lookup(g.norm(tok.text), "ADJ")
     return hit
+
+
+# Adjectives that are common nouns too ("the light", "a fine", "kind of"): no noun fallback.
+_AMBIGUOUS_ADJ = {"light", "fine", "kind", "fair", "welcome", "clear", "sharp", "bright", "fast",
+                  "quick", "warm", "soft", "fresh", "rich", "solid", "clean", "dead", "pretty", "cool",
+                  "sweet", "gross", "positive", "ill", "sore", "safe", "secure", "steady", "mad",
+                  "best", "ideal", "superior", "inferior", "professional", "precious", "fun",
+                  "sick", "tired", "correct", "worth", "wrong", "usable", "adequate", "loose", "tight",
+                  "heavy", "weak", "strong", "tough", "rough", "simple", "easy", "wet", "dry"}
 
 
 # Verbs that take a finite complement clause ("I think it's great"). A "ccomp" under any other
@@ -182,6 +232,7 @@ def analyse(doc: "Doc", lexicon: "Lexicon") -> Analysis:
     """Cut ``doc`` into clauses; say whether any opinion sits where no rule can reach it."""
     heads = {t.i for t in doc if _is_finite_head(t)}
     clauses: list[Clause] = []
+    fragments: list[Fragment] = []
     unsure: str | None = None
     has_opinion = False
     for t in doc:
@@ -219,14 +270,197 @@ def analyse(doc: "Doc", lexicon: "Lexicon") -> Analysis:
         rest = [t for t in sent if t.i not in covered]
         if any(opinion_of(t, lexicon) is not None for t in rest):
             has_opinion = True
-            unsure = unsure or ("question" if is_question else "fragment without a finite verb")
+            if is_question:
+                unsure = unsure or "question"
+                continue
+            if sent.root.i in heads or any(
+                opinion_of(x, lexicon) is not None for cl in clauses if cl.head.sent == sent for x in cl.own
+            ):
+                unsure = unsure or "fragment without a finite verb"
+                continue
+            frag = fragment(sent, lexicon)
+            if isinstance(frag, str):
+                unsure = unsure or f"fragment: {frag}"
+            else:
+                fragments.append(frag)
     if not has_opinion:
         unsure = unsure or "no opinion"
     return Analysis(
         clauses=[c for c in clauses if c.opinion or c.nonfinite_opinion],
         unsure=unsure,
         others=[c for c in clauses if not (c.opinion or c.nonfinite_opinion)],
+        fragments=fragments,
     )
+
+
+# ---------------------------------------------------------------- fragments
+
+# Degree words that go with the adjective under the negation ("not very comfortable").
+_DEGREE = {"very", "so", "too", "really", "especially", "extremely", "super", "incredibly",
+           "totally", "completely", "highly", "particularly", "terribly", "awfully", "most", "more",
+           "overly", "real", "that", "as"}
+# Mass nouns that take no article ("not poor quality", "not great value for the money").
+_MASS = {"quality", "value", "service", "sound", "performance", "software", "design", "packaging",
+         "shipping", "delivery", "stuff", "price", "money", "fun", "advice", "help", "food",
+         "weather", "music", "news", "support", "construction", "reception",
+         "life", "audio", "graphics", "craftsmanship", "workmanship",
+         "material", "clarity", "resolution", "functionality", "usability", "coffee", "taste",
+         "crap", "junk", "garbage", "trash", "rubbish", "shit", "bullshit", "luck", "timing",
+         "equipment", "gear", "storage", "memory", "feedback", "communication", "technology",
+         "hardware", "imaging", "bass", "access"}
+# Greetings and formulas ("Happy birthday!", "Good morning"): no opinion to reverse.
+_FORMULA_NOUNS = {"morning", "night", "evening", "afternoon", "luck", "birthday", "bday", "anniversary",
+                  "holiday", "holidays", "christmas", "xmas", "thanksgiving", "easter", "halloween",
+                  "weekend", "year", "day", "monday", "tuesday", "wednesday", "thursday", "friday",
+                  "saturday", "sunday", "valentine", "valentines", "mothers", "fathers", "job", "times",
+                  "riddance", "grief", "lord", "god", "heavens", "gosh", "one", "work", "going"}
+_ALL_NEG = NEGATORS | OTHER_NEG
+# Sentence adverbs that may stand before a negated fragment ("So far, not so good", "Overall, not great").
+_SENTENCE_ADVS = {"far", "overall", "still", "honestly", "seriously", "just", "simply", "and", "but"}
+_ARTICLE_DETS = {"a", "an", "the", "my", "your", "our", "his", "her", "their"}
+_LEAD_POS = {"INTJ", "PUNCT", "ADV", "CCONJ", "SPACE"}
+
+
+def _article(word: str) -> str | None:
+    """'a' or 'an' before ``word`` by its first sound, or None when the spelling cannot tell
+    (digits, acronyms). Handbook fact: the article follows the sound, not the letter."""
+    w = word.lower()
+    if not w[:1].isalpha() or any(ch.isdigit() for ch in w) or (word.isupper() and len(word) <= 4):
+        return None
+    if w.startswith(("hour", "honest", "honor", "honour", "heir")):
+        return "an"
+    if w.startswith(("uni", "use", "usu", "uti", "eu", "one", "once", "ubi", "ura", "ure", "uro")):
+        return "a"
+    return "an" if w[0] in "aeiou" else "a"
+
+
+def _not_before(tok: "Token", words: str) -> TokenEdit:
+    """Insert ``words`` (starting with "not") before ``tok``, taking over its capital."""
+    text = tok.text
+    if text[:1].isupper() and not (text.isupper() and len(text) > 1) and g.norm(text) != "i":
+        first = words[:1].upper() + words[1:]
+        return TokenEdit(tok.i, tok.i + 1, f"{first} {text[:1].lower()}{text[1:]}")
+    if text.isupper() and len(text) > 1:
+        return TokenEdit(tok.i, tok.i + 1, f"{words.upper()} {text}")
+    return TokenEdit(tok.i, tok.i + 1, f"{words} {text}")
+
+
+def _lead_ok(sent, start: int) -> bool:
+    """Everything in the sentence before token ``start`` is an interjection, a sentence adverb,
+    punctuation or a social-media token ("Wow, great tent", "So far so good", "@x great game")."""
+    for t in sent:
+        if t.i >= start:
+            return True
+        if not (is_noise(t) or t.pos_ in _LEAD_POS or g.norm(t.text) in ("lol", "haha", "oh", "wow", "yes", "yeah", "ok", "okay")):
+            return False
+    return True
+
+
+def _tail_ok(sent, last: int) -> bool:
+    """After the phrase there is only punctuation and social-media tokens."""
+    return all(is_noise(t) or t.pos_ in ("PUNCT", "SPACE") or t.is_punct for t in sent if t.i > last)
+
+
+def fragment(sent, lexicon: "Lexicon") -> Fragment | str:
+    """Toggle a verbless opinion sentence, or say why not."""
+    root = sent.root
+    if is_noise(root):
+        return "social-media token as root"
+    toks = [t for t in sent if not is_noise(t)]
+    ops = [t for t in toks if opinion_of(t, lexicon) is not None]
+    if len(ops) == 2 and root in ops and root.pos_ == "NOUN" and len({opinion_of(t, lexicon).polarity for t in ops}) == 1:
+        ops.remove(root)  # "Great value.": the noun agrees with its adjective
+    if len(ops) != 1:
+        return "more than one opinion word"  # "Bad, bad bus", "excellent phone, excellent service"
+    op = ops[0]
+    if any(t.pos_ in ("NUM", "SYM", "X") or t.text in ("=", "&", "+", "/") for t in toks):
+        return "numbers or symbols"
+    words_ = [g.norm(t.text) for t in toks]
+    for i, n in enumerate(words_):
+        if n in PPI or n in SCOPE_WORDS or n in ("ever", "yet", "anymore", "enough", "either", "any"):
+            return f"polarity-sensitive word {n!r}"
+        if n == "at" and i + 1 < len(words_) and words_[i + 1] == "all":
+            return "'at all'"
+        if n == "too" and (i + 1 == len(words_) or toks[i + 1].pos_ not in ("ADJ", "ADV")):
+            return "'too' meaning 'also'"
+    negs = [t for t in toks if g.norm(t.text) in _ALL_NEG or t.dep_ == "neg" or g.norm(t.text).endswith("n't")]
+    if any(c.dep_ in ("conj", "appos", "cc") for c in root.children) or any(t.dep_ in ("dep", "parataxis") for t in toks):
+        return "coordinated or loose phrases"
+    sub = sorted(root.subtree, key=lambda t: t.i)
+    phrase = [t for t in sub if not is_noise(t) and not t.is_punct]
+    if not phrase or phrase[0].i > root.i:
+        return "empty phrase"
+    last = max(t.i for t in phrase)
+    if not _tail_ok(sent, last):
+        return "words after the phrase"
+    adjlike = root.pos_ == "ADJ" or (root.pos_ in ("NOUN", "PROPN") and opinion_of(root, lexicon) is not None
+                                     and lexicon.lookup(g.norm(root.text), "ADJ") is not None
+                                     and all(c.is_punct or is_noise(c) for c in root.children))
+    if adjlike:
+        if op.i != root.i:
+            return "the opinion word is not the adjective"
+        if any(c.i > root.i and c.dep_ not in ("prep", "xcomp", "punct", "npadvmod") and not is_noise(c) for c in root.children):
+            return "a clause after the adjective"
+        # the adjective and the degree words right before it: "not very comfortable"
+        p = root.i
+        doc = root.doc
+        while p - 1 >= sent.start and doc[p - 1].pos_ == "ADV" and g.norm(doc[p - 1].text) in _DEGREE:
+            p -= 1
+        if negs:
+            if len(negs) == 1 and g.norm(negs[0].text) == "not" and negs[0].i == p - 1 and _lead_ok(sent, p - 1):
+                return Fragment(root, [TokenEdit(p - 1, p, "")], 0, 1)  # "Not bad." -> "Bad."
+            return "negation in the fragment"
+        if not _lead_ok(sent, p):
+            return "words before the adjective"
+        if any(t.i < p and t.dep_ != "punct" and not is_noise(t) and t.head.i == root.i
+               and g.norm(t.text) not in _SENTENCE_ADVS for t in sent):
+            return "unexpected word before the adjective"  # "moderately impressed": no "not" inside
+        return Fragment(root, [_not_before(doc[p], "not")], 1, 0)
+    if root.pos_ != "NOUN":
+        return f"root is {root.pos_}"
+    if g.norm(root.text) in _FORMULA_NOUNS or lemma(root).lower() in _FORMULA_NOUNS:
+        return "a greeting or formula"
+    if op.pos_ != "ADJ" or op.head.i != root.i or op.dep_ != "amod":
+        return "the opinion word is not an adjective on the noun"
+    if g.norm(op.text) in ("happy", "merry"):
+        return "a greeting or formula"  # "Happy 4th of July!"
+    for t in phrase:
+        if t.i < root.i:
+            ok = t.dep_ in ("det", "poss", "amod", "compound", "punct") or (
+                t.dep_ == "advmod" and t.head.dep_ == "amod" and g.norm(t.text) in _DEGREE)
+            if not ok or t.pos_ == "INTJ":
+                return f"unexpected word {t.text!r} before the noun"
+    for c in root.children:
+        if c.i > root.i and c.dep_ not in ("prep", "relcl", "punct") and not (c.dep_ == "advmod" and g.norm(c.text) == "there") and not is_noise(c):
+            return f"unexpected {c.dep_} after the noun"
+    first = phrase[0]
+    if not _lead_ok(sent, first.i):
+        return "words before the phrase"
+    if g.norm(first.text) in ("what", "such", "how", "no", "some", "any", "all", "every", "this", "that",
+                               "these", "those", "another", "each", "both", "more", "less"):
+        return f"determiner {first.text!r}"
+    if any(t.dep_ == "nummod" or t.pos_ == "NUM" for t in phrase if t.head.i == root.i):
+        return "a number"
+    if any(t.dep_ == "relcl" for t in phrase) and not any(t.tag_ == "JJS" for t in phrase):
+        return "relative clause"
+    if negs:
+        if len(negs) == 1 and g.norm(negs[0].text) == "not" and negs[0].i == first.i:
+            return Fragment(root, [TokenEdit(first.i, first.i + 1, "")], 0, 1)  # "Not a great buy." -> "A great buy."
+        return "negation in the fragment"
+    doc = root.doc
+    if g.norm(first.text) in _ARTICLE_DETS:
+        words = "not"
+    elif any(t.tag_ == "JJS" or g.norm(t.text) in ("best", "worst") or (g.norm(t.text) == "most" and t.dep_ == "advmod")
+             for t in phrase if t.i < root.i):
+        words = "not the"
+    elif root.tag_ in ("NNS", "NNPS") or g.norm(root.text) in _MASS or lemma(root).lower() in _MASS:
+        words = "not"
+    else:
+        art = _article(first.text)
+        if art is None:
+            return "cannot choose the article"
+        words = f"not {art}"
+    return Fragment(root, [_not_before(first, words)], 1, 0)
 
 
 def trailing_plain_conjunct(an: Analysis) -> Clause | None:
@@ -297,6 +531,19 @@ def aux_negation(tok: "Token", style: str) -> list[TokenEdit] | None:
     return [TokenEdit(tok.i, tok.i + 1, match_case(neg, tok.text))]
 
 
+def dropped_subject(cl: Clause) -> bool:
+    """A review-style clause with its subject left out whose verb cannot be an imperative: it
+    opens its sentence with a finite -s/-ed form or a modal ("Works great.", "Would buy again.")."""
+    head = cl.head
+    if cl.subj is not None or head.dep_ != "ROOT":
+        return False
+    finite = cl.auxes[0] if cl.auxes else head
+    if finite.tag_ not in ("VBZ", "VBD", "MD") or g.norm(finite.text) in ("is", "'s", "am", "are"):
+        return False
+    first = next((t for t in head.sent if not is_noise(t) and not t.is_punct), None)
+    return first is not None and first.i == finite.i
+
+
 def insertion(cl: Clause, style: str, new_base: str | None = None) -> tuple[str, list[TokenEdit]] | str:
     """Negate a clause: (rule, edits), or the reason it cannot be done.
 
@@ -304,7 +551,7 @@ def insertion(cl: Clause, style: str, new_base: str | None = None) -> tuple[str,
     """
     head, subj = cl.head, cl.subj
     doc = head.doc
-    if subj is None:
+    if subj is None and not dropped_subject(cl):
         return "no subject (imperative or fragment)"
     if cl.negated:
         return "already negated"
@@ -321,11 +568,11 @@ def insertion(cl: Clause, style: str, new_base: str | None = None) -> tuple[str,
         if n in PPI or n in SCOPE_WORDS or (n == "too" and x.head.pos_ in ("VERB", "AUX")) or (n == "well" and x.i > 0 and g.norm(doc[x.i - 1].text) == "as"):
             return f"positive-polarity word {x.text!r}"
     finite = cl.auxes[0] if cl.auxes else head
-    if finite.i < subj.i:
+    if subj is not None and finite.i < subj.i:
         return "inverted word order"
-    if subj.pos_ not in ("PRON", "NOUN", "PROPN", "NUM", "DET", "X") or g.norm(subj.text) in ("a", "an", "the"):
+    if subj is not None and (subj.pos_ not in ("PRON", "NOUN", "PROPN", "NUM", "DET", "X") or g.norm(subj.text) in ("a", "an", "the")):
         return f"doubtful subject {subj.text!r} (tagger slip)"
-    if subj.dep_ == "nsubjpass" and not cl.auxes:
+    if subj is not None and subj.dep_ == "nsubjpass" and not cl.auxes:
         return "passive subject without an auxiliary (tagger slip)"
     for x in cl.own:
         if x.pos_ == "VERB" and x.dep_ == "conj" and x.head.pos_ not in ("VERB", "AUX"):
@@ -370,7 +617,7 @@ def insertion(cl: Clause, style: str, new_base: str | None = None) -> tuple[str,
     # the negation goes before "really/always" but after "definitely/also"
     run: list[Token] = []
     j = head.i - 1
-    while j > subj.i and doc[j].pos_ == "ADV" and doc[j].head.i == head.i:
+    while j > (subj.i if subj is not None else head.sent.start - 1) and doc[j].pos_ == "ADV" and doc[j].head.i == head.i:
         run.insert(0, doc[j])
         j -= 1
     if run and g.norm(run[0].text) in AFTER_NEG_ADVS:
@@ -387,14 +634,14 @@ def removal(cl: Clause) -> list[TokenEdit] | str:
     """Remove the clause's one negation: edits, or the reason it cannot be done."""
     head, subj = cl.head, cl.subj
     doc = head.doc
-    if subj is None:
+    if subj is None and not dropped_subject(cl):
         return "no subject (imperative or fragment)"
     if cl.other_negs:
         return f"negator {cl.other_negs[0].text!r} is not removable"
     if len(cl.negs) != 1:
         return "more than one negation"
     neg = cl.negs[0]
-    if neg.i < subj.i:
+    if subj is not None and neg.i < subj.i:
         return "negation before the subject"
     for x in cl.own:
         n = g.norm(x.text)
@@ -441,11 +688,11 @@ def removal(cl: Clause) -> list[TokenEdit] | str:
 
 def doubtful(an: Analysis) -> str | None:
     """Why the text as a whole is not to be touched, or None."""
-    if an.unsure or not an.clauses:
+    if an.unsure or not (an.clauses or an.fragments):
         return an.unsure or "no opinion clause"
     if trailing_plain_conjunct(an) is not None:
         return "a predicate without an opinion word follows an opinion predicate"
-    if any(t.dep_ == "dep" for cl in an.clauses for t in cl.own):
+    if any(t.dep_ == "dep" and not is_noise(t) and t.pos_ not in ("INTJ", "PUNCT", "X", "SYM") for cl in an.clauses for t in cl.own):
         return "the parser could not attach a word"
     for cl in an.others:  # "... and the dog did too": an echo of the clause we would edit
         if g.base_form(cl.head) == "do" and not any(c.dep_ in ("dobj", "ccomp", "xcomp") for c in cl.head.children):
@@ -549,6 +796,11 @@ def plan(doc: "Doc", ctx: Context) -> "Candidate | str":
             rules.append(res2[0])
             edits.extend(res2[1])
             inserted += 1
+    for fr in an.fragments:
+        rules.append("negation/fragment")
+        edits.extend(fr.edits)
+        inserted += fr.inserted
+        removed += fr.removed
     if not edits:
         return "no edit"
     spans = sorted((e.start, e.end) for e in edits)
@@ -560,5 +812,5 @@ def plan(doc: "Doc", ctx: Context) -> "Candidate | str":
         should=RULES[rules[0]],
         edits=tuple(edits),
         meta={"clauses": len(rules), "rules": rules, "inserted": inserted, "removed": removed,
-              "style": style, "predicates": [cl.head.text for cl in clauses]},
+              "style": style, "predicates": [cl.head.text for cl in clauses] + [fr.root.text for fr in an.fragments]},
     )

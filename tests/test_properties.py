@@ -16,7 +16,7 @@ from __future__ import annotations
 from collections import Counter
 
 import pytest
-from hypothesis import HealthCheck, given, settings
+from hypothesis import HealthCheck, example, given, settings
 from hypothesis import strategies as st
 
 from pairflip.perturb.base import TokenEdit, apply_edits, words
@@ -149,6 +149,8 @@ UNICODE_TEXT = st.lists(st.one_of(st.text(max_size=12), AWKWARD, st.sampled_from
 
 @settings(max_examples=1000, **SETTINGS)
 @given(texts=st.lists(UNICODE_TEXT, min_size=1, max_size=3))
+@example(texts=["\u00c0 000"])  # found by this test: a shuffle that moves the capital word after a number
+@example(texts=["\u202e and sturdy\x8adc\u00df%\x94these boots\r not \u0301awful"])  # found: coordination
 def test_arbitrary_unicode_never_breaks_a_rule(nlp, lexicon, texts):
     check_build(texts, nlp, lexicon)
 
@@ -161,6 +163,7 @@ def test_plain_hypothesis_text_never_breaks_a_rule(nlp, lexicon, text):
 
 @settings(max_examples=1000, **SETTINGS)
 @given(texts=st.lists(reviews(), min_size=1, max_size=3))
+@example(texts=["The tent works badly  after a week of rain"])  # found by this test (a double space)
 def test_review_sentences_keep_the_invariants(nlp, lexicon, texts):
     check_build(texts, nlp, lexicon)
 
