@@ -13,6 +13,11 @@ Decisions recorded here:
 - ``ci95`` is the 95 % Wilson interval of the violation rate, ``flip_ci95`` that of the flip rate;
   with ``cluster="source"`` both are a seeded percentile bootstrap over source sentences. A group
   with no pairs to count gets ``(0.0, 1.0)``: nothing is known.
+- A family's own numbers leave out its diagnostic rules (should ``none``, e.g.
+  ``reorder/shuffle``): they carry no expectation, and mixing a random word order into the
+  family's flip rate would blur the rate that gates read. Each diagnostic rule keeps its own row
+  in ``rules`` (gate it as ``reorder/shuffle.flip``). A family made only of diagnostic rules
+  reports them.
 - ``by_label`` breaks a family down by the *gold* label of the source, when the suite carries
   gold labels (sources without one go under ``"(none)"``); it is empty otherwise.
   ``by_prediction`` breaks it down by the model's own label on the source, always: expectations
@@ -194,10 +199,17 @@ def summarize(
     for v in results.verdicts:
         by_family[v.family].append(v)
     families: dict[str, GroupStats] = {}
-    for fam, vs in by_family.items():
+    for fam, all_vs in by_family.items():
+        # Diagnostic rules (should "none", e.g. reorder/shuffle) stay out of the family's numbers
+        # (and so out of family-level gates); each still has its own row under ``rules``.
+        vs = [v for v in all_vs if v.should != "none"] or all_vs
         g = GroupStats(should=_should_of(vs))
         _fill(g, vs, cluster, seed, n_boot)
         by_rule: dict[str, list[Verdict]] = defaultdict(list)
+        if len(vs) != len(all_vs):
+            for v in all_vs:
+                if v.should == "none":
+                    by_rule[v.rule].append(v)
         by_gold: dict[str, list[Verdict]] = defaultdict(list)
         by_pred: dict[str, list[Verdict]] = defaultdict(list)
         has_gold = any(v.label is not None for v in vs)
