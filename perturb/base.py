@@ -289,3 +289,32 @@ def _is_base_form(word: str) -> bool:
     ok = not lemmas or word in {l for ls in lemmas.values() for l in ls}
     _BASE_CACHE[word] = ok
     return ok
+
+
+# --------------------------------------------------------------------------- cached sentence lookups
+# ``doc.sents`` and ``token.sent`` rescan the whole doc on every call; rules ask often, so the
+# sentence spans are computed once per doc and kept in ``doc.user_data``.
+
+_SENTS_KEY = "pairflip.sents"
+
+
+def sents(doc: "Doc") -> list[Any]:
+    """The doc's sentences (spans), computed once per doc."""
+    cached = doc.user_data.get(_SENTS_KEY)
+    if cached is None:
+        spans = list(doc.sents)
+        owner = [0] * len(doc)
+        for k, sp in enumerate(spans):
+            for i in range(sp.start, sp.end):
+                owner[i] = k
+        cached = (spans, owner)
+        doc.user_data[_SENTS_KEY] = cached
+    return cached[0]
+
+
+def sent_of(tok: "Token") -> Any:
+    """The sentence holding ``tok`` (same as ``tok.sent``, without rescanning the doc)."""
+    doc = tok.doc
+    sents(doc)
+    spans, owner = doc.user_data[_SENTS_KEY]
+    return spans[owner[tok.i]]

@@ -44,7 +44,7 @@ from __future__ import annotations
 
 from typing import TYPE_CHECKING, Iterator
 
-from pairflip.perturb.base import NEGATORS, Candidate, Context, TokenEdit, lemma
+from pairflip.perturb.base import NEGATORS, Candidate, Context, TokenEdit, lemma, sent_of, sents
 from pairflip.perturb.lexicon import OpinionWord
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -108,7 +108,7 @@ def candidates(doc: "Doc", ctx: Context) -> Iterator[Candidate]:
     if len(polarities) != 1:  # mixed or contradicting opinions: the direction is unclear
         return
     for tok, (entry, role) in targets:
-        sent = tok.sent
+        sent = sent_of(tok)
         if sent.text.rstrip().endswith("?") or _negated(tok) or _irrealis(tok, role):
             continue
         yield from _edits_for(doc, tok, entry, role, degree)
@@ -294,7 +294,7 @@ def _left_modifier(tok: "Token", degree: dict[tuple[str, ...], str]) -> tuple[in
     """The degree phrase right before ``tok`` as (start index, kind); kind ``other`` when the
     word before is an adverb or degree word we do not handle; ``None`` when there is none."""
     doc = tok.doc
-    sent_start = tok.sent.start
+    sent_start = sent_of(tok).start
     for n in (3, 2, 1):
         start = tok.i - n
         if start < sent_start:
@@ -322,7 +322,7 @@ def _left_modifier(tok: "Token", degree: dict[tuple[str, ...], str]) -> tuple[in
 def _edits_for(doc: "Doc", tok: "Token", entry: "OpinionWord", role: str, degree: dict) -> Iterator[Candidate]:
     mod = _left_modifier(tok, degree)
     k = (mod[0] if mod else tok.i) - 1  # the article, if any, is right before the edit
-    if k - 1 >= tok.sent.start and doc[k].lower_ in ARTICLES and doc[k - 1].lower_ in EXCLAMATIVE:
+    if k - 1 >= sent_of(tok).start and doc[k].lower_ in ARTICLES and doc[k - 1].lower_ in EXCLAMATIVE:
         return  # "What a great lantern!", "such a roomy tent", "quite a heavy pack"
     base_meta = {"target": tok.text, "polarity": entry.polarity, "grade": entry.grade, "role": role}
     if role == "verb":
@@ -334,7 +334,7 @@ def _edits_for(doc: "Doc", tok: "Token", entry: "OpinionWord", role: str, degree
     if tok.lower_ in HENDIADYS and nxt is not None and nxt.lower_ == "and":
         return  # "nice and light" means "pleasantly light": "very nice and light" loses that
     if mod is None:
-        prev = doc[tok.i - 1] if tok.i > tok.sent.start else None
+        prev = doc[tok.i - 1] if tok.i > sent_of(tok).start else None
         if role == "attributive" and prev is not None and prev.tag_ in ("JJ", "JJR", "JJS", "NN", "VBN", "VBG"):
             return  # stacked modifiers: "a big roomy tent"
         if prev is not None and prev.lower_ == "such":
@@ -376,12 +376,12 @@ def _candidate(doc: "Doc", tok: "Token", start: int, new_words: list[str], rule:
     keeping an indefinite article before it in agreement and the sentence's capital in place."""
     region_start = start
     words: list[tuple[str, "Token | None"]] = [(w, None) for w in new_words] + [(tok.text, tok)]
-    article = doc[start - 1] if start > tok.sent.start else None
+    article = doc[start - 1] if start > sent_of(tok).start else None
     if article is not None and article.lower_ in ARTICLES and article.tag_ == "DT":
         region_start = start - 1
         words.insert(0, (match_article(indefinite_article(words[0][0]), article.text), article))
     first = doc[region_start]
-    if first.i == first.sent.start and first.text[:1].isupper():
+    if first.i == sent_of(first).start and first.text[:1].isupper():
         out = []
         for k, (w, src) in enumerate(words):
             if k == 0:

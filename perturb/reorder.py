@@ -39,7 +39,7 @@ from __future__ import annotations
 
 from typing import TYPE_CHECKING, Iterator
 
-from pairflip.perturb.base import NEGATORS, PUNCT_CLOSE, Candidate, Context, TokenEdit, lemma
+from pairflip.perturb.base import NEGATORS, PUNCT_CLOSE, Candidate, Context, TokenEdit, lemma, sent_of, sents
 from pairflip.perturb.intensifier import _is_adjective, indefinite_article, match_article
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -137,7 +137,7 @@ CONTENT_POS = frozenset({"NOUN", "PROPN", "VERB", "ADJ", "ADV", "NUM"})
 
 def candidates(doc: "Doc", ctx: Context) -> Iterator[Candidate]:
     """Every reorder variant the parse supports; shuffle last (it consumes ``ctx.rng``)."""
-    for sent in doc.sents:
+    for sent in sents(doc):
         yield from _coordination(sent, ctx)
         yield from _adverbial(sent, ctx)
         yield from _clauses(sent, ctx)
@@ -335,7 +335,7 @@ def _subject_end(verb: "Token") -> int:
     for c in verb.children:
         if c.dep_ in ("nsubj", "nsubjpass"):
             return c.right_edge.i
-    return verb.sent.start - 1
+    return sent_of(verb).start - 1
 
 
 # --- adverbials ------------------------------------------------------------------------------
@@ -518,7 +518,7 @@ def _glued(tok: "Token") -> bool:
 
 def _shuffle(doc: "Doc", ctx: Context) -> Candidate | None:
     edits: list[TokenEdit] = []
-    for sent in doc.sents:
+    for sent in sents(doc):
         slots = [
             t for t in sent
             if t.pos_ in CONTENT_POS and not t.is_punct and t.lower_ not in NEGATORS and t.dep_ != "neg"
