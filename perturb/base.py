@@ -109,13 +109,13 @@ def _starts_upper(text: str) -> bool:
 
 
 def apply_edits(doc: "Doc", edits: tuple[TokenEdit, ...] | list[TokenEdit]) -> tuple[str, list[Edit]]:
-    """Apply token edits to ``doc.text``; return the variant and its character-level edits.
+    """Apply token edits to ``doc_text(doc)``; return the variant and its character-level edits.
 
     Keeps each untouched token's own whitespace, removes the whitespace a deletion leaves behind,
     closes up space before punctuation that an edit put at a join, and gives the variant a capital
     at the start when the source had one. Edits must not overlap.
     """
-    text = doc.text
+    text = doc_text(doc)
     spans: list[tuple[int, int, str]] = []
     for e in sorted(edits, key=lambda e: (e.start, e.end)):
         if e.start < 0 or e.end > len(doc) or e.start > e.end:
@@ -219,7 +219,7 @@ _DO_PLUS = re.compile(r"\b(?:do|does|did)(?:n't|\s+not)\s+([a-z]+)\b", re.IGNORE
 
 def validate(doc: "Doc", cand: Candidate, variant: str) -> str | None:
     """Why the variant must be dropped, or ``None``. Judged from the source and the edit only."""
-    source = doc.text
+    source = doc_text(doc)
     if not variant.strip():
         return "empty variant"
     if variant == source:
@@ -318,3 +318,11 @@ def sent_of(tok: "Token") -> Any:
     sents(doc)
     spans, owner = doc.user_data[_SENTS_KEY]
     return spans[owner[tok.i]]
+
+
+def doc_text(doc: "Doc") -> str:
+    """``doc.text``, computed once per doc (spaCy rebuilds it from every token on each call)."""
+    text = doc.user_data.get("pairflip.text")
+    if text is None:
+        text = doc.user_data["pairflip.text"] = doc.text
+    return text

@@ -7,7 +7,7 @@ from collections import Counter, defaultdict
 from dataclasses import dataclass, field
 from typing import Any, Callable, Iterable, Iterator, Sequence
 
-from pairflip.perturb.base import Candidate, Context, apply_edits, validate
+from pairflip.perturb.base import Candidate, Context, apply_edits, doc_text, validate
 from pairflip.perturb.lexicon import Lexicon, load_lexicon
 from pairflip.perturb.nlp import load_nlp, model_name
 from pairflip.records import Pair, PairflipError, SourceText, Suite, stable_id, text_digest
@@ -199,13 +199,13 @@ def _pairs_for_doc(
             kept += 1
             stats.made[rule] += 1
             yield Pair(
-                source=doc.text,
+                source=doc_text(doc),
                 variant=variant,
                 family=module.FAMILY,
                 rule=rule,
                 should=cand.should,
                 edits=char_edits,
-                source_id=stable_id("source", doc.text),
+                source_id=stable_id("source", doc_text(doc)),
                 label=st.label,
                 meta=dict(cand.meta),
             )

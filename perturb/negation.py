@@ -32,7 +32,7 @@ from dataclasses import dataclass, field
 from typing import TYPE_CHECKING, Iterator
 
 from pairflip.perturb import grammar as g
-from pairflip.perturb.base import NEGATORS, Candidate, Context, TokenEdit, lemma, match_case
+from pairflip.perturb.base import NEGATORS, Candidate, Context, TokenEdit, lemma, match_case, sent_of, sents
 
 if TYPE_CHECKING:  # pragma: no cover
     from spacy.tokens import Doc, Token
@@ -145,7 +145,18 @@ class Fragment:
 
 
 def opinion_of(tok: "Token", lexicon: "Lexicon"):
-    """The opinion-lexicon entry of a token (by lemma and part of speech), or ``None``."""
+    """The opinion-lexicon entry of a token (by lemma and part of speech), or ``None``.
+
+    Memoised per doc and lexicon in ``doc.user_data`` (rules ask about the same tokens often).
+    """
+    memo = tok.doc.user_data.setdefault(("pairflip.opinion_of", id(lexicon)), {})
+    i = tok.i
+    if i not in memo:
+        memo[i] = _opinion_of(tok, lexicon)
+    return memo[i]
+
+
+def _opinion_of(tok: "Token", lexicon: "Lexicon"):
     pos = _POS_TO_LEX.get(tok.pos_)
     if pos is None or not tok.is_alpha:
         return None
@@ -229,7 +240,19 @@ def _own_tokens(head: "Token", heads: set[int]) -> tuple[list["Token"], list["To
 
 
 def analyse(doc: "Doc", lexicon: "Lexicon") -> Analysis:
-    """Cut ``doc`` into clauses; say whether any opinion sits where no rule can reach it."""
+    """Cut ``doc`` into clauses; say whether any opinion sits where no rule can reach it.
+
+    Computed once per doc and lexicon (negation and double-negation both read it; neither
+    changes it), kept in ``doc.user_data``.
+    """
+    key = ("pairflip.negation.analyse", id(lexicon))
+    cached = doc.user_data.get(key)
+    if cached is None:
+        cached = doc.user_data[key] = _analyse(doc, lexicon)
+    return cached
+
+
+def _analyse(doc: "Doc", lexicon: "Lexicon") -> Analysis:
     heads = {t.i for t in doc if _is_finite_head(t)}
     clauses: list[Clause] = []
     fragments: list[Fragment] = []
@@ -240,7 +263,7 @@ def analyse(doc: "Doc", lexicon: "Lexicon") -> Analysis:
             unsure = unsure or "conditional"
         if g.norm(t.text) == "not" and t.i + 1 < len(doc) and g.norm(doc[t.i + 1].text) == "only":
             unsure = unsure or "not only"
-    for sent in doc.sents:
+    for sent in sents(doc):
         is_question = any("?" in t.text for t in sent)
         covered: set[int] = set()
         for t in sent:
@@ -274,7 +297,7 @@ def analyse(doc: "Doc", lexicon: "Lexicon") -> Analysis:
                 unsure = unsure or "question"
                 continue
             if sent.root.i in heads or any(
-                opinion_of(x, lexicon) is not None for cl in clauses if cl.head.sent == sent for x in cl.own
+                opinion_of(x, lexicon) is not None for cl in clauses if sent_of(cl.head) == sent for x in cl.own
             ):
                 unsure = unsure or "fragment without a finite verb"
                 continue
@@ -540,7 +563,7 @@ def dropped_subject(cl: Clause) -> bool:
     finite = cl.auxes[0] if cl.auxes else head
     if finite.tag_ not in ("VBZ", "VBD", "MD") or g.norm(finite.text) in ("is", "'s", "am", "are"):
         return False
-    first = next((t for t in head.sent if not is_noise(t) and not t.is_punct), None)
+    first = next((t for t in sent_of(head) if not is_noise(t) and not t.is_punct), None)
     return first is not None and first.i == finite.i
 
 
@@ -617,7 +640,7 @@ def insertion(cl: Clause, style: str, new_base: str | None = None) -> tuple[str,
     # the negation goes before "really/always" but after "definitely/also"
     run: list[Token] = []
     j = head.i - 1
-    while j > (subj.i if subj is not None else head.sent.start - 1) and doc[j].pos_ == "ADV" and doc[j].head.i == head.i:
+    while j > (subj.i if subj is not None else sent_of(head).start - 1) and doc[j].pos_ == "ADV" and doc[j].head.i == head.i:
         run.insert(0, doc[j])
         j -= 1
     if run and g.norm(run[0].text) in AFTER_NEG_ADVS:

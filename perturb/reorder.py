@@ -159,7 +159,9 @@ def _span_text(doc: "Doc", a: int, b: int, *, initial: bool, was_initial: bool) 
     when it leaves one (unless it starts with a proper noun, "I" or an acronym)."""
     text = doc[a:b].text
     if initial:
-        return text[:1].upper() + text[1:]
+        # only where the sentence had a capital: all-lower-case text stays lower case
+        first = doc[sent_of(doc[a]).start]
+        return text[:1].upper() + text[1:] if first.text[:1].isupper() else text
     if was_initial and not _keeps_capital(doc[a]):
         return text[:1].lower() + text[1:]
     return text
@@ -544,7 +546,7 @@ def _shuffle(doc: "Doc", ctx: Context) -> Candidate | None:
             if slot.i == src.i:
                 continue
             text = src.text
-            if slot.i == sent.start:
+            if slot.i == sent.start and slot.text[:1].isupper():
                 text = text[:1].upper() + text[1:]
             elif src.i == sent.start and not _keeps_capital(src):
                 text = text[:1].lower() + text[1:]
