@@ -20,7 +20,8 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
-from typing import Any, Iterable, Mapping, Sequence
+from collections.abc import Mapping
+from typing import Any, Iterable, Sequence
 
 from pairflip.records import PairflipError
 
@@ -43,6 +44,8 @@ PROBABILITY_TOLERANCE = 0.01
 
 def normalise_label(label: Any) -> str:
     """Labels are compared as strings; 1.0, numpy.int64(1) and True all become ``'1'``."""
+    if type(label) is str:  # the common case, first
+        return label.strip()
     if isinstance(label, bool):
         return "1" if label else "0"
     if isinstance(label, float) and label.is_integer():
@@ -138,6 +141,8 @@ class LabelMap:
     # ------------------------------------------------------------------ lookups
 
     def _lookup(self, label: Any) -> str | None:
+        if type(label) is str and label in self.polarity:  # fast path: already canonical
+            return label
         lab = normalise_label(label)
         if lab in self.polarity:
             return lab
@@ -184,7 +189,8 @@ class LabelMap:
         Probabilities must be finite, non-negative and sum to 1 (within
         :data:`PROBABILITY_TOLERANCE`; the score is computed from the renormalised values).
         """
-        self.check(probabilities, where=where)
+        if not all(type(k) is str and k in self.polarity for k in probabilities):
+            self.check(probabilities, where=where)
         total = 0.0
         score = 0.0
         for lab, p in probabilities.items():

@@ -217,6 +217,41 @@ _DOUBLED_NEG = re.compile(
 _DO_PLUS = re.compile(r"\b(?:do|does|did)(?:n't|\s+not)\s+([a-z]+)\b", re.IGNORECASE)
 
 
+_SPACE_PUNCT = re.compile(r" [,.;:!?]")
+_DOUBLED_PUNCT = re.compile(r",\s*,|\.\s*,|,\s*\.")
+
+
+@dataclass(frozen=True)
+class _SourceFacts:
+    """What validate needs to know about a source, computed once per source text."""
+
+    doubled_neg: bool
+    space_punct: bool
+    double_space: bool
+    doubled_punct: bool
+    starts_upper: bool
+    words: tuple[str, ...]
+    joined: str
+    multiset: tuple[str, ...]
+    negations: int
+
+
+@lru_cache(maxsize=4096)
+def _source_facts(source: str) -> _SourceFacts:
+    sw = words(source)
+    return _SourceFacts(
+        doubled_neg=bool(_DOUBLED_NEG.search(source)),
+        space_punct=bool(_SPACE_PUNCT.search(source)),
+        double_space="  " in source,
+        doubled_punct=bool(_DOUBLED_PUNCT.search(source)),
+        starts_upper=_starts_upper(source),
+        words=tuple(sw),
+        joined=" ".join(sw),
+        multiset=tuple(sorted(_article_as_a(sw))),
+        negations=_count_negations(sw),
+    )
+
+
 def validate(doc: "Doc", cand: Candidate, variant: str) -> str | None:
     """Why the variant must be dropped, or ``None``. Judged from the source and the edit only."""
     source = doc_text(doc)
@@ -224,34 +259,36 @@ def validate(doc: "Doc", cand: Candidate, variant: str) -> str | None:
         return "empty variant"
     if variant == source:
         return "unchanged"
-    if _DOUBLED_NEG.search(variant) and not _DOUBLED_NEG.search(source):
+    src = _source_facts(source)
+    if not src.doubled_neg and _DOUBLED_NEG.search(variant):
         return "doubled negation"
-    if re.search(r" [,.;:!?]", variant) and not re.search(r" [,.;:!?]", source):
+    if not src.space_punct and _SPACE_PUNCT.search(variant):
         return "space before punctuation"
-    if "  " in variant and "  " not in source:
+    if not src.double_space and "  " in variant:
         return "double space"
-    if re.search(r",\s*,|\.\s*,|,\s*\.", variant) and not re.search(r",\s*,|\.\s*,|,\s*\.", source):
+    if not src.doubled_punct and _DOUBLED_PUNCT.search(variant):
         return "doubled punctuation"
-    if _starts_upper(source) and not _starts_upper(variant):
+    if src.starts_upper and not _starts_upper(variant):
         return "no capital at the start"
-    vw, sw = words(variant), words(source)
+    vw = words(variant)
     for a, b in zip(vw, vw[1:]):
-        if a == b and a.isalpha() and f"{a} {b}" not in " ".join(sw):
+        if a == b and a.isalpha() and f"{a} {b}" not in src.joined:
             return "repeated word"
-    if cand.rule.startswith("reorder/") and sorted(_article_as_a(vw)) != sorted(_article_as_a(sw)):
+    if cand.rule.startswith("reorder/") and tuple(sorted(_article_as_a(vw))) != src.multiset:
         # "a"/"an" count as one word: a reorder may fix the article ("an easy and quick" -> "a quick and easy")
         return "reorder changed the words"
     want = _negation_change(cand)
     if want is not None:
-        delta = _neg_count(variant) - _neg_count(source)
+        delta = _count_negations(vw) - src.negations
         if delta != want:
             return f"negation count changed by {delta:+d}, expected {want:+d}"
-    for m in _DO_PLUS.finditer(variant):
-        if m.group(0) in source:
-            continue
-        verb = m.group(1).lower()
-        if not _is_base_form(verb):
-            return "agreement: do-support needs the base form"
+    if "do" in variant.lower() or "did" in variant.lower():
+        for m in _DO_PLUS.finditer(variant):
+            if m.group(0) in source:
+                continue
+            verb = m.group(1).lower()
+            if not _is_base_form(verb):
+                return "agreement: do-support needs the base form"
     return None
 
 
@@ -260,7 +297,11 @@ def _article_as_a(ws: list[str]) -> list[str]:
 
 
 def _neg_count(text: str) -> int:
-    return sum(1 for w in words(text) if w.replace("’", "'").endswith("n't") or w in NEGATORS)
+    return _count_negations(words(text))
+
+
+def _count_negations(ws: "list[str] | tuple[str, ...]") -> int:
+    return sum(1 for w in ws if w in NEGATORS or w.replace("’", "'").endswith("n't"))
 
 
 def _negation_change(cand: Candidate) -> int | None:

@@ -174,6 +174,7 @@ def _pairs_for_doc(
     except Exception as err:  # a rule bug must not end a long build; it is counted and reported
         stats.dropped[f"{module.FAMILY}/*"][f"rule error: {type(err).__name__}: {err}"] += 1
         return
+    source_id = stable_id("source", doc_text(doc)) if by_rule else ""
     for rule in sorted(by_rule):
         cands = by_rule[rule]
         rng.shuffle(cands)
@@ -205,7 +206,7 @@ def _pairs_for_doc(
                 rule=rule,
                 should=cand.should,
                 edits=char_edits,
-                source_id=stable_id("source", doc_text(doc)),
+                source_id=source_id,
                 label=st.label,
                 meta=dict(cand.meta),
             )

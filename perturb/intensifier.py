@@ -91,6 +91,22 @@ EXTRA_NEGATORS = frozenset({"without", "hardly", "barely", "scarcely", "lack", "
 # too) is never taken for one.
 ADJ_SUFFIXES = ("y", "ful", "ous", "ive", "able", "ible", "al", "ic", "less", "ish", "ent", "ant")
 ARTICLES = ("a", "an")
+# Verbs after which an adjective states a quality of the subject (common practice; handbook fact
+# that these are linking verbs: Quirk et al. 1985, 16.21 on copular verbs, from memory).
+LINKING_VERBS = frozenset("be feel look seem sound stay remain appear taste smell".split())
+# Nouns of greetings, wishes and fixed phrases ("good luck", "happy birthday", "a great deal").
+FORMULA_NOUNS = frozenset(
+    "luck morning night evening afternoon birthday bday anniversary holiday holidays christmas xmas "
+    "easter halloween weekend year day week job deal riddance grief lord god heavens times time one "
+    "thing lot".split()
+)
+# Verbs whose manner says how well a product does its job ("works reliably", "fits well"),
+# besides the opinion verbs of the lexicon.
+FUNCTION_VERBS = frozenset(
+    "work fit run perform function last hold handle cook heat light charge fold pack ship arrive install "
+    "connect play focus wear breathe clean cut close zip open seal drain boil burn print load respond "
+    "start flap rattle squeak leak pitch operate glide slide grip pour shoot sound feel look go".split()
+)
 HENDIADYS = frozenset({"nice", "good", "lovely", "fine"})
 EXCLAMATIVE = frozenset({"what", "such", "quite", "rather"})
 
@@ -122,6 +138,8 @@ def _target(tok: "Token", lex: "Lexicon") -> tuple["OpinionWord", str] | None:
     ``attributive``, ``predicative``, ``adverb`` or ``verb``."""
     if tok.tag_ in ("JJR", "JJS", "RBR", "RBS"):
         return None
+    if _name_like(tok) or _fixed_context(tok):
+        return None
     if tok.lower_ in OTHER_DEGREE:
         return None
     if any(c.lower_ in ("than", "enough") for c in tok.children):
@@ -137,6 +155,11 @@ def _target(tok: "Token", lex: "Lexicon") -> tuple["OpinionWord", str] | None:
     if tok.pos_ == "ADV" and tok.tag_ == "RB" and tok.dep_ == "advmod" and tok.head.pos_ in ("VERB", "AUX"):
         if tok.lower_ in lex.intensifiers:  # "terribly", "perfectly" grade other words
             return None
+        verb = lemma(tok.head).lower()
+        if verb not in FUNCTION_VERBS and lex.lookup(verb, "VERB") is None:
+            return None  # "the day is slowly warming up": a manner, not a verdict
+        if tok.i < tok.head.i:
+            return None  # "slowly warming": a pre-verbal adverb is most often a frame, not a verdict
         entry = lex.lookup(tok.lower_, "ADV")
         if entry is None or entry.grade not in ("gradable", "extreme"):
             return None
@@ -149,6 +172,32 @@ def _target(tok: "Token", lex: "Lexicon") -> tuple["OpinionWord", str] | None:
         entry = lex.lookup(lemma(tok), "VERB")
         return (entry, "verb") if entry is not None else None
     return None
+
+
+def _capitalised_mid(tok: "Token") -> bool:
+    t = tok.text
+    return t[:1].isupper() and t != "I" and not (t.isupper() and len(t) > 1) and tok.i != sent_of(tok).start
+
+
+def _name_like(tok: "Token") -> bool:
+    """A name or title ("Grateful Dead", "Happy Valley Lodge"): never graded."""
+    doc = tok.doc
+    if tok.pos_ == "PROPN" or _capitalised_mid(tok):
+        return True
+    nxt = doc[tok.i + 1] if tok.i + 1 < len(doc) else None
+    return nxt is not None and (nxt.pos_ == "PROPN" or _capitalised_mid(nxt))
+
+
+def _fixed_context(tok: "Token") -> bool:
+    """Inside a fixed expression: a simile ("clear as day"), "nice and X", a repetition ("sexy sexy")."""
+    doc = tok.doc
+    nxt = doc[tok.i + 1] if tok.i + 1 < len(doc) else None
+    prev = doc[tok.i - 1] if tok.i > 0 else None
+    if nxt is not None and nxt.lower_ == "as" and tok.pos_ == "ADJ":
+        return True  # "clear as day", "light as a feather"
+    if prev is not None and prev.lower_ == "and" and tok.i >= 2 and doc[tok.i - 2].lower_ in HENDIADYS:
+        return True  # "nice and relaxed" = pleasantly relaxed
+    return (nxt is not None and nxt.lower_ == tok.lower_) or (prev is not None and prev.lower_ == tok.lower_)
 
 
 def _is_adjective(tok: "Token", lex: "Lexicon") -> bool:
@@ -170,25 +219,52 @@ def _is_adjective(tok: "Token", lex: "Lexicon") -> bool:
 
 
 def _adjective_role(tok: "Token") -> str | None:
+    """``attributive`` only in a plain "a/the ADJ NOUN" object, complement or fragment;
+    ``predicative`` only right after a linking verb ("is roomy", "feels flimsy") or as a
+    verbless sentence ("Very comfortable."); else None (the word may not carry the opinion)."""
     head = tok
     while head.dep_ == "conj" and head.head.i != head.i:
         head = head.head
     dep = head.dep_
-    if dep in ("amod", "compound") and head.head.pos_ in ("NOUN", "PROPN") and head.i < head.head.i:
-        # "a great deal of", "a good deal of": a quantity, not an opinion
+    if dep in ("amod", "compound") and head.head.pos_ == "NOUN" and head.i < head.head.i:
         noun = head.head
-        if noun.lower_ == "deal":
-            return None
+        if noun.lower_ in FORMULA_NOUNS or lemma(noun).lower() in FORMULA_NOUNS:
+            return None  # "a great deal of", "good luck", "happy birthday": fixed expressions
         if _in_adverbial_phrase(noun):
             # "skates on wet granite", "in heavy rain", "after a couple of quick adjustments": the
-            # weather, ground or occasion, not the product; kept: "a tent with an easy setup"
+            # weather, ground or occasion, not the product
             return None
+        if noun.dep_ not in ("dobj", "attr", "ROOT") or tok.i + 1 != noun.i or head.i != tok.i:
+            return None  # "with an expensive lens": a detail, not the text's opinion
+        if any(c.i < tok.i and (c.dep_ not in ("det", "advmod", "punct") or
+                                (c.dep_ == "det" and c.lower_ not in ("a", "an", "the")))
+               for c in noun.children):
+            return None  # only "a/the ADJ NOUN"
         return "attributive"
     if dep in ("acomp", "attr", "oprd", "xcomp", "ccomp") and head.head.pos_ in ("VERB", "AUX"):
+        verb = {"'m": "be", "'s": "be", "'re": "be"}.get(head.head.lower_.replace("\u2019", "'"), lemma(head.head).lower())
+        if head.i != tok.i or verb not in LINKING_VERBS or head.head.i > tok.i:
+            return None  # "we turned poor", "makes it easy": a change of state or a result, not an opinion
+        if not all(t.i in _degree_span(tok) or t.dep_ in ("neg",) for t in tok.doc[head.head.i + 1 : tok.i]):
+            return None  # "joaquin phoenix uncomfortable", "is slowly warm": only degree words in between
         return "predicative"
     if dep == "ROOT":  # a fragment: "Very comfortable."
+        sent = sent_of(tok)
+        if any(not (t.is_punct or t.i in _degree_span(tok) or t.pos_ == "INTJ") for t in tok.doc[sent.start : tok.i]):
+            return None  # "joaquin phoenix uncomfortable": a comparison with a name, not a plain fragment
         return "predicative"
     return None
+
+
+def _degree_span(tok: "Token") -> set[int]:
+    """Indices of the adverbs right before ``tok`` that modify it ("very", "a bit")."""
+    out: set[int] = set()
+    j = tok.i - 1
+    while j >= 0 and (tok.doc[j].head.i == tok.i and tok.doc[j].dep_ in ("advmod", "npadvmod", "det")
+                      or tok.doc[j].head.i in out | {tok.i} and tok.doc[j].dep_ in ("advmod", "det", "amod")):
+        out.add(j)
+        j -= 1
+    return out
 
 
 def _in_adverbial_phrase(noun: "Token") -> bool:

@@ -160,10 +160,18 @@ def _opinion_of(tok: "Token", lexicon: "Lexicon"):
     pos = _POS_TO_LEX.get(tok.pos_)
     if pos is None or not tok.is_alpha:
         return None
+    doc = tok.doc
+    if (tok.i > 0 and doc[tok.i - 1].text in ("-", "/") and not doc[tok.i - 1].whitespace_) or (
+            tok.i + 1 < len(doc) and doc[tok.i + 1].text in ("-", "/") and not tok.whitespace_):
+        return None  # "tax-the-rich", "s-video": part of a compound, not an opinion
     if g.norm(tok.text) == "well" and tok.i > 0 and g.norm(tok.doc[tok.i - 1].text) == "as":
         return None  # "as well"
     if g.norm(tok.text) == "like" and pos != "VERB":
         return None
+    if pos == "VERB" and lemma(tok).lower() == "work" and any(
+        c.dep_ == "nsubj" and g.norm(c.text) in _PERSONS for c in tok.children
+    ):
+        return None  # "I have worked internationally": a person's job, not a product that works
     hit = lexicon.lookup(lemma(tok).lower(), pos) or lexicon.lookup(g.norm(tok.text), pos)
     if hit is None and pos == "NOUN" and g.norm(tok.text) not in _AMBIGUOUS_ADJ and not any(
         c.dep_ in ("det", "poss", "nummod", "amod", "compound") for c in tok.children
@@ -176,6 +184,7 @@ def _opinion_of(tok: "Token", lexicon: "Lexicon"):
     return hit
 
 
+_PERSONS = frozenset({"i", "we", "you", "he", "she"})
 # Adjectives that are common nouns too ("the light", "a fine", "kind of"): no noun fallback.
 _AMBIGUOUS_ADJ = {"light", "fine", "kind", "fair", "welcome", "clear", "sharp", "bright", "fast",
                   "quick", "warm", "soft", "fresh", "rich", "solid", "clean", "dead", "pretty", "cool",
@@ -396,8 +405,10 @@ def fragment(sent, lexicon: "Lexicon") -> Fragment | str:
     if len(ops) != 1:
         return "more than one opinion word"  # "Bad, bad bus", "excellent phone, excellent service"
     op = ops[0]
-    if any(t.pos_ in ("NUM", "SYM", "X") or t.text in ("=", "&", "+", "/") for t in toks):
+    if any(t.pos_ in ("NUM", "SYM", "X") or t.text in ("=", "&", "+", "/", "-", "--", ":", ";") for t in toks):
         return "numbers or symbols"
+    if root.pos_ in ("NOUN", "PROPN") and any("!" in t.text for t in sent):
+        return "an exclamation"  # "Stupid rain!": a curse, not a verdict to negate
     words_ = [g.norm(t.text) for t in toks]
     for i, n in enumerate(words_):
         if n in PPI or n in SCOPE_WORDS or n in ("ever", "yet", "anymore", "enough", "either", "any"):
@@ -608,6 +619,8 @@ def insertion(cl: Clause, style: str, new_base: str | None = None) -> tuple[str,
             return "unknown auxiliary"
         if kind == "modal" and len(cl.auxes) > 1 and g.aux_kind(cl.auxes[1]) == "have" and g.aux_word(finite) in ("would", "could", "should", "might", "may", "must"):
             return "counterfactual perfect"
+        if kind == "modal" and g.aux_word(finite) in NO_NEG_MODALS:
+            return f"'{g.aux_word(finite)} not' is no opposite"  # "may not encounter problems"
         edits = aux_negation(finite, style)
         if edits is None:
             return "cannot negate the auxiliary"
@@ -643,6 +656,8 @@ def insertion(cl: Clause, style: str, new_base: str | None = None) -> tuple[str,
     while j > (subj.i if subj is not None else sent_of(head).start - 1) and doc[j].pos_ == "ADV" and doc[j].head.i == head.i:
         run.insert(0, doc[j])
         j -= 1
+    if any(g.norm(r.text) not in AFTER_NEG_ADVS | PRE_NEG_ADVS for r in run):
+        return f"adverb {run[0].text!r} before the verb"  # "I mostly like" -> "I don't mostly like"
     if run and g.norm(run[0].text) in AFTER_NEG_ADVS:
         edits = [TokenEdit(run[0].i, run[0].i, do), TokenEdit(head.i, head.i + 1, match_case(base, head.text))]
     else:
@@ -757,6 +772,182 @@ def _governor(tok: "Token", by_head: dict[int, Clause]) -> Clause | None:
     return None
 
 
+# ---------------------------------------------------------------- text-level precision guards
+# A negation reverses a text only when the negated clauses carry all of its opinion. These
+# signals carry opinion outside any clause (or bind clauses to one another), so a text holding
+# one is skipped: a skipped text costs little, a half-flipped pair misleads.
+
+# Interjections and chat words that carry sentiment on their own ("Yay!", "ugh", "lol").
+INTERJECTIONS = frozenset(
+    "yay yey yippee woohoo woot hooray hurray huzzah ugh argh grr meh wow whoa omg omfg lol lolz lmao "
+    "rofl haha hahaha hehe ew eww yuck yikes wtf fml smh damn dammit darn oops ouch phew sigh alas "
+    "aww awww ah ahh ahhh boo booo yes yess yesss yeah yep nope bah hmph woo oh ohh dear".split()
+)
+_INTERJ_RE = re.compile(r"^(?:y+a+y+|u+g+h+|a+r+g+h+|g+r+r+|w+o+w+|(?:ha){2,}h?|(?:he){2,}|l+o+l+|l+m+a+o+|o+m+g+|a+w+|y+e+s+|n+o{2,})$")
+# Words after which the text turns, weighs two sides or draws a consequence.
+CONTRAST_WORDS = frozenset({"but", "although", "though", "however", "yet", "whereas", "except", "otherwise",
+                            "nevertheless", "nonetheless", "still", "anyway", "despite", "instead"})
+CONSEQUENCE_WORDS = frozenset({"therefore", "thus", "hence", "consequently"})
+# Label words of review headers ("this con: ...", "Pros: ...", "Update - ...").
+HEADER_WORDS = frozenset("pro pros con cons plus plusses minus minuses downside downsides upside upsides "
+                         "negative negatives positive positives complaint complaints gripe gripes verdict "
+                         "summary update edit note ps bottom conclusion".split())
+# Amplifiers of an extreme degree: negating the opinion they carry gives a hedge ("isn't so
+# great", "don't totally love"), not the opposite.
+EXTREME_DEGREE = frozenset("such totally completely utterly truly absolutely extremely incredibly super "
+                           "insanely ridiculously unbelievably exceptionally remarkably hugely highly "
+                           "terribly awfully seriously most that absolute complete total utter sheer pure".split())
+# Extreme words whose negation is read as the opposite opinion, not a hedge: "it isn't great"
+# says the thing is poor (common practice in review text; from memory).
+NEGATABLE_EXTREME = frozenset({"great"})
+# Modals whose negation is not the opposite: "may not" / "might not" keep the possibility,
+# "mustn't" forbids.
+NO_NEG_MODALS = frozenset({"may", "might", "must"})
+# Adverbs that may stand right after the negated auxiliary ("isn't very good", "isn't really worth it").
+_AFTER_AUX_OK = AFTER_NEG_ADVS | {"very", "so", "too", "as"}
+_ACRONYM_OK = frozenset({"I", "A", "OK", "TV", "USB", "DVD", "CD", "PC", "GPS", "LCD", "MP3", "HD", "UK", "US", "USA"})
+
+
+def _is_emoticon(tok: "Token") -> bool:
+    t = tok.text
+    if t[:1] in "@#" or tok.like_url or t.lower() == "rt":
+        return False
+    return bool(_NOISE.match(t)) or (not any(ch.isalnum() for ch in t) and len(t) > 1
+                                     and not set(t) <= set(".!?-,;:'\"*()"))
+
+
+def _hashtag_opinion(body: str, lexicon: "Lexicon") -> bool:
+    low = body.lower()
+    if low in INTERJECTIONS or _INTERJ_RE.match(low):
+        return True
+    for w in ("fail", "win", "ftw", "epic", "love", "hate", "sad", "happy", "sucks", "suck", "yay", "ugh", "omg", "wtf",
+              "fml", "lol", "best", "worst", "awesome", "great", "bad", "good", "angry", "annoy", "excited", "proud",
+              "thankful", "grateful", "blessed", "disappoint", "frustrat", "shame", "joy", "cry", "smile"):
+        if w in low:
+            return True
+    return any(lexicon.lookup(part) is not None for part in re.findall(r"[A-Za-z][a-z]+|[a-z]+", body))
+
+
+def text_guard(doc: "Doc", lexicon: "Lexicon") -> str | None:
+    """Why the text keeps opinion (or logic) that a clause negation cannot reach, or None.
+
+    Memoised per doc and lexicon in ``doc.user_data``."""
+    key = ("pairflip.negation.text_guard", id(lexicon))
+    if key not in doc.user_data:
+        doc.user_data[key] = _text_guard(doc, lexicon)
+    return doc.user_data[key]
+
+
+_EMOTICON_IN_TEXT = re.compile(r"(?:^|\s)(?:[:;=8][-o'^]?[()DPpOo3\]\[/\\|*@$]|<3|[)(][-o']?[:;=])")
+# A negated clause in a long text rarely carries all of its opinion (common practice: the
+# blind review of round 1 found the long texts half flipped).
+MAX_WORDS = 30
+
+
+def _text_guard(doc: "Doc", lexicon: "Lexicon") -> str | None:
+    from pairflip.perturb.base import doc_text
+
+    if _EMOTICON_IN_TEXT.search(doc_text(doc)):
+        return "emoticon"
+    if sum(1 for t in doc if t.is_alpha) > MAX_WORDS:
+        return f"more than {MAX_WORDS} words"
+    caps_run = 0
+    for t in doc:
+        low = t.text.lower()
+        if _is_emoticon(t):
+            return f"emoticon {t.text!r}"
+        if t.text[:1] == "#" and len(t.text) > 1:
+            if _hashtag_opinion(t.text[1:], lexicon):
+                return f"sentiment hashtag {t.text!r}"
+            continue
+        if t.text[:1] == "@" or is_noise(t):
+            continue
+        if low in INTERJECTIONS or (t.is_alpha and _INTERJ_RE.match(low)):
+            return f"interjection {t.text!r}"
+        if low in CONTRAST_WORDS and t.pos_ != "NOUN":
+            return f"contrast {t.text!r}"
+        if low == "while" and t.dep_ == "mark":
+            return "contrast 'while'"
+        if low in CONSEQUENCE_WORDS:
+            return f"consequence {t.text!r}"
+        if low == "so":
+            nxt = doc[t.i + 1] if t.i + 1 < len(doc) else None
+            if nxt is None or nxt.pos_ not in ("ADJ", "ADV", "DET") or t.dep_ in ("cc", "mark"):
+                return "consequence 'so'"
+        if low == "why" and t.i > 0 and g.norm(doc[t.i - 1].text) in ("that's", "is", "'s", "which"):
+            return "consequence 'that's why'"
+        if low == "the" and t.i + 1 < len(doc) and doc[t.i + 1].tag_ in ("JJR", "RBR") and (
+                t.i == 0 or doc[t.i - 1].is_punct or doc[t.i - 1].dep_ == "cc" or doc[t.i + 1].dep_ in ("advmod", "npadvmod")):
+            return "correlative 'the more ... the more'"
+        if low in HEADER_WORDS and t.i + 1 < len(doc) and doc[t.i + 1].text in (":", "-", "--"):
+            return f"header {t.text!r}"
+        if t.is_alpha and t.text.isupper() and len(t.text) > 1 and t.text not in _ACRONYM_OK:
+            caps_run += 1
+            if caps_run >= 2 or opinion_of(t, lexicon) is not None or low in EXTREME_DEGREE or low in lexicon.intensifiers:
+                return f"emphatic capitals {t.text!r}"
+        elif t.is_alpha:
+            caps_run = 0
+    for a, b in zip(doc, doc[1:]):  # "HATE HATE", "sexy sexy": emphatic repetition
+        if a.is_alpha and a.lower_ == b.lower_ and opinion_of(a, lexicon) is not None:
+            return f"emphatic repetition {a.text!r}"
+    return None
+
+
+def _emphasised(tok: "Token", lexicon: "Lexicon") -> str | None:
+    """Why negating this opinion word would give a hedge, not the opposite, or None."""
+    entry = opinion_of(tok, lexicon)
+    if entry is not None and entry.grade == "extreme" and g.norm(tok.text) not in NEGATABLE_EXTREME:
+        return f"extreme opinion word {tok.text!r}"
+    if tok.tag_ in ("JJS", "RBS") or g.norm(tok.text) in ("best", "worst"):
+        return f"superlative {tok.text!r}"
+    if tok.is_alpha and tok.text.isupper() and len(tok.text) > 1:
+        return f"opinion word in capitals {tok.text!r}"
+    for c in tok.children:
+        if c.dep_ in ("advmod", "amod", "det", "predet") and g.norm(c.text) in EXTREME_DEGREE:
+            return f"extreme amplifier {c.text!r}"
+    return None
+
+
+_HEDGES = frozenset({"almost", "nearly", "mostly", "pretty", "fairly", "kinda", "sorta", "partly", "largely"})
+_SAY_VERBS = frozenset({"think", "believe", "guess", "feel", "say", "find", "know"})
+
+
+def _main_like(head: "Token") -> bool:
+    """A main clause, a conjunct of one, or the complement of "I think / I feel"."""
+    h = head
+    for _ in range(10):
+        if h.dep_ == "ROOT":
+            return True
+        if h.dep_ in ("conj", "advcl"):
+            h = h.head
+            continue
+        if h.dep_ == "ccomp" and lemma(h.head).lower() in _SAY_VERBS and h.head.dep_ == "ROOT":
+            return True
+        return False
+    return False
+
+
+def _main_opinion(cl: Clause, lexicon: "Lexicon") -> list["Token"]:
+    """The opinion words on the clause's predicate proper (no fallback to noun-phrase modifiers)."""
+    keep = {t.i for t in predicate_opinion(cl)}
+    hits = [t for t in cl.opinion if t.i in keep]
+    subj_ids = {t.i for t in cl.subj.subtree} if cl.subj is not None else set()
+    return [t for t in hits if t.i not in subj_ids]
+
+
+def _frequency_after_aux(cl: Clause) -> "Token | None":
+    """An adverb right after the finite auxiliary that the negation must not precede ("are
+    mostly thrilled" -> "*aren't mostly thrilled")."""
+    if not cl.auxes and g.aux_kind(cl.head) != "be":
+        return None  # do-support: the adverbs before the verb are checked in insertion()
+    finite = cl.auxes[0] if cl.auxes else cl.head
+    doc = finite.doc
+    nxt = doc[finite.i + 1] if finite.i + 1 < len(doc) else None
+    if nxt is not None and nxt.pos_ == "ADV" and g.norm(nxt.text) not in _AFTER_AUX_OK | PRE_NEG_ADVS:
+        return nxt
+    return None
+
+
 def clause_style(doc: "Doc", default: str = DEFAULT_STYLE) -> str:
     return g.text_style(doc) or default
 
@@ -771,7 +962,7 @@ def candidates(doc: "Doc", ctx: Context) -> Iterator[Candidate]:
 def plan(doc: "Doc", ctx: Context) -> "Candidate | str":
     """The one candidate for ``doc`` (every opinion clause toggled), or why there is none."""
     an = analyse(doc, ctx.lexicon)
-    why = doubtful(an)
+    why = doubtful(an) or text_guard(doc, ctx.lexicon)
     if why is not None:
         return why
     by_head = {cl.head.i: cl for cl in an.clauses}
@@ -786,6 +977,25 @@ def plan(doc: "Doc", ctx: Context) -> "Candidate | str":
     for cl in clauses:
         if cl.nonfinite_opinion:
             return "opinion in a non-finite adverbial"
+        if is_noise(cl.head):
+            return "a link or tag read as a verb"
+        if not _main_like(cl.head):
+            return f"opinion clause is a {cl.head.dep_} (not a main clause)"  # "those who don't like it are ..."
+        if any(t.dep_ == "conj" and t.head.i in {x.i for x in predicate_opinion(cl)} and t.pos_ in ("ADJ", "NOUN", "ADV")
+               for t in cl.own):
+            return "coordinated opinion predicate"  # "isn't very easy and very good": not (A and B) is unclear
+        for x in cl.own:
+            if g.norm(x.text) in _HEDGES and x.dep_ in ("advmod", "npadvmod"):
+                return f"hedge {x.text!r}"  # "didn't work almost perfectly"
+        main = _main_opinion(cl, ctx.lexicon)
+        if not main:
+            return "no opinion word on the predicate"  # "the worst attack was led by ...": a factual claim
+        for t in cl.opinion:
+            why = _emphasised(t, ctx.lexicon)
+            if why is not None:
+                return why
+        if not cl.negated and _frequency_after_aux(cl) is not None:
+            return f"adverb {_frequency_after_aux(cl).text!r} after the auxiliary"
         if len({opinion_of(t, ctx.lexicon).polarity for t in predicate_opinion(cl)}) > 1:
             return "mixed polarity in one predicate"  # "heavy but durable": a negation would not reverse the clause
         own_ids = {t.i for t in cl.own}
@@ -820,10 +1030,25 @@ def plan(doc: "Doc", ctx: Context) -> "Candidate | str":
             edits.extend(res2[1])
             inserted += 1
     for fr in an.fragments:
+        for t in sent_of(fr.root):
+            if opinion_of(t, ctx.lexicon) is not None and _emphasised(t, ctx.lexicon) is not None:
+                return "fragment: " + str(_emphasised(t, ctx.lexicon))
+    # every sentence with words of its own must be toggled: a sentence left as it is keeps
+    # whatever opinion the lexicon cannot see ("3) 4x zoom is nice 4) the great thing ...")
+    touched = {sent_of(cl.head).start for cl in clauses} | {sent_of(fr.root).start for fr in an.fragments}
+    for sent in sents(doc):
+        if sent.start not in touched and any(t.is_alpha and not is_noise(t) for t in sent):
+            return "a sentence without a toggled clause"
+    for fr in an.fragments:
         rules.append("negation/fragment")
         edits.extend(fr.edits)
         inserted += fr.inserted
         removed += fr.removed
+    for o in an.others:
+        if not _embedded(o) and g.aux_kind(o.head) == "be" and any(c.dep_ in ("acomp", "attr") and c.pos_ in ("ADJ", "NOUN") for c in o.head.children):
+            return "a plain clause may carry an unseen opinion"  # "and it is mostly idiot proof"
+        if o.subj is None and o.head.tag_ == "VB" and o.head.dep_ in ("ROOT", "conj") and not o.auxes:
+            return "an imperative in the text"  # "throw a phone and you're asking for trouble"
     if not edits:
         return "no edit"
     spans = sorted((e.start, e.end) for e in edits)

@@ -132,6 +132,11 @@ ARGUMENT_VERBS = frozenset(  # verbs whose place phrase is an argument ("left it
     "carry fit pack move send ship return stay remain".split()
 )
 CONTRAST = frozenset({"but", "yet", "although", "though", "while", "whereas", "however"})
+# Coordinations that may be rotated: single adjectives and adverbs ("light and warm"); nouns,
+# verbs and prepositional phrases carry modifiers that re-attach to the wrong conjunct ("corned
+# beef on rye and soup").
+SAFE_KINDS = frozenset({"adj", "adv"})
+MOVE_TO_END = False
 CONTENT_POS = frozenset({"NOUN", "PROPN", "VERB", "ADJ", "ADV", "NUM"})
 
 
@@ -244,6 +249,8 @@ def _coordination(sent: "Span", ctx: Context) -> Iterator[Candidate]:
         if len(kinds) != 1 or None in kinds:
             continue
         kind = kinds.pop()
+        if kind not in SAFE_KINDS:
+            continue  # noun, verb and prepositional conjuncts carry modifiers that re-attach
         if kind in ("adj", "adv") and head.dep_ in ("pobj", "dobj", "nsubj", "nsubjpass", "compound"):
             continue  # "reliable in the cold and easy to light": "cold" is not coordinated with "easy"
         ccs = [c for t in conj for c in t.children if c.dep_ == "cc"]
@@ -266,6 +273,11 @@ def _coordination(sent: "Span", ctx: Context) -> Iterator[Candidate]:
         after = spans[-1][1]
         if kind in ("adj", "adv") and after < sent.end and doc[after].lower_ == "to" and doc[after].head.i not in ids:
             continue  # "dark, stuffy and hard to move around in": the infinitive goes with the last one
+        if not all(_plain_conjunct(doc, a, b, t) for (a, b), t in zip(spans, conj)):
+            continue
+        if any(g.lower_ in NEGATORS or any(c.lower_ in NEGATORS or c.dep_ == "neg" for c in g.children)
+               for g in {head, head.head}):
+            continue  # "no X and no Y needed": the negation's scope changes with the order
         toks = [doc[a:b] for a, b in spans]
         texts = [s.text.lower() for s in toks]
         if len(set(texts)) != len(texts):
@@ -291,6 +303,22 @@ def _coordination(sent: "Span", ctx: Context) -> Iterator[Candidate]:
             "reorder/coordination", RULES["reorder/coordination"], tuple(edits),
             {"kind": kind, "conjuncts": len(spans), "coordinator": ccs[0].lower_},
         )
+
+
+def _plain_conjunct(doc: "Doc", a: int, b: int, head: "Token") -> bool:
+    """A conjunct that is one word, or one word after its degree adverbs ("very light"), with no
+    glued hyphen, slash, hashtag or link on either side ("s-video", "#map", "a/b")."""
+    for i in range(a, b):
+        t = doc[i]
+        if i != head.i and not (t.dep_ == "advmod" and t.head.i == head.i and i < head.i and not list(t.children)):
+            return False
+        if t.text[:1] in "#@" or t.like_url or any(ch in t.text for ch in "-/_#@"):
+            return False
+    if a > 0 and not doc[a - 1].whitespace_ and doc[a - 1].text in ("-", "/", "#", "@", "&", "+"):
+        return False
+    if b < len(doc) and not doc[b - 1].whitespace_ and doc[b].text in ("-", "/", "&", "+"):
+        return False
+    return True
 
 
 def _coordination_ok(kind: str, conj: list["Token"], toks: list["Span"], texts: list[str], lex) -> bool:
@@ -403,6 +431,8 @@ def _adverbial(sent: "Span", ctx: Context) -> Iterator[Candidate]:
         adv = right[-1]
         if (
             adv.right_edge.i == last
+            and adv.dep_ in ("prep", "advmod", "npadvmod")
+            and not any(t.pos_ in ("VERB", "AUX") or t.dep_ in ("relcl", "acl", "advcl", "mark") for t in adv.subtree)
             and _adjunct(adv, root)
             and subj.left_edge.i == sent.start
             and not (lemma(root) == "be" and not any(c.dep_ in ("acomp", "attr") for c in root.children))
@@ -424,8 +454,9 @@ def _adverbial(sent: "Span", ctx: Context) -> Iterator[Candidate]:
                     "reorder/adverbial", RULES["reorder/adverbial"], tuple(edits),
                     {"direction": "to-front", "phrase": doc[a : last + 1].text},
                 )
-    # front -> end
-    left = [c for c in root.children if c.i < root.i and not c.is_punct]
+    # front -> end: never (at the end the phrase may attach to the last noun: "... a gift after
+    # less than 24 hours")
+    left = [c for c in root.children if c.i < root.i and not c.is_punct] if MOVE_TO_END else []
     if left and left[0].left_edge.i == sent.start:
         adv = left[0]
         b = adv.right_edge.i + 1

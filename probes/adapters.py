@@ -70,14 +70,21 @@ class Model:
 class PythonModel(Model):
     """An in-process model: a callable ``list[str] -> outputs`` or an object with ``predict``.
 
-    With ``predict_proba`` and ``classes_`` the labels still come from ``predict`` (they can
-    disagree with the most probable class, for example in an SVM with Platt scaling) and the
-    probabilities from ``predict_proba``.
+    With ``predict_proba`` and ``classes_`` the model is called once per batch, through
+    ``predict_proba``, and each label is the most probable class — which is what ``predict``
+    returns for scikit-learn's probabilistic classifiers (logistic regression, naive Bayes,
+    MLP, trees), so the model's cost is paid once, not twice. A model whose ``predict`` disagrees
+    with its most probable class (an SVM with ``probability=True``) can be given with
+    ``labels_from="predict"``: then both are called, labels from ``predict``.
     """
 
     kind = "python"
 
-    def __init__(self, obj: Any, spec: str | None = None, name: str | None = None, *, fingerprint: str | None = None) -> None:
+    def __init__(self, obj: Any, spec: str | None = None, name: str | None = None, *, fingerprint: str | None = None,
+                 labels_from: str = "proba") -> None:
+        if labels_from not in ("proba", "predict"):
+            raise PairflipError(f"labels_from={labels_from!r}: expected 'proba' or 'predict'")
+        self.labels_from = labels_from
         if not (callable(obj) or hasattr(obj, "predict")):
             raise PairflipError(
                 f"model {spec or _describe_obj(obj)}: a {type(obj).__name__} is neither callable nor has a predict method"
@@ -98,6 +105,12 @@ class PythonModel(Model):
 
     def predict(self, texts: list[str]) -> list[Prediction]:
         obj = self.obj
+        if self.labels_from == "proba" and self.classes and hasattr(obj, "predict_proba"):
+            proba = obj.predict_proba(texts)
+            shape = getattr(proba, "shape", None)
+            if shape is not None and len(shape) != 2:
+                raise ModelError(f"predict_proba returned an array of shape {shape}, expected (texts, classes)")
+            return build_predictions(len(texts), labels=None, probabilities=proba, classes=self.classes)
         if hasattr(obj, "predict"):
             labels = obj.predict(texts)
             if _is_sequence(labels) and len(labels) == len(texts) and labels_are_items(labels):

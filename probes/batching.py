@@ -12,7 +12,8 @@ from __future__ import annotations
 
 import math
 from concurrent.futures import FIRST_COMPLETED, Future, ThreadPoolExecutor, wait
-from typing import Any, Iterator, Mapping, Sequence
+from collections.abc import Mapping
+from typing import Any, Iterator, Sequence
 
 from pairflip.labels import PROBABILITY_TOLERANCE, normalise_label
 from pairflip.records import PairflipError, Prediction
@@ -28,6 +29,11 @@ class ModelError(PairflipError):
 
 def as_label(x: Any, i: int) -> str:
     """One output label as a string; None, NaN, empty strings and sequences are refused."""
+    if type(x) is str:
+        lab = x.strip()
+        if lab:
+            return lab
+        raise ModelError(f"output {i} is an empty label")
     if x is None or (isinstance(x, float) and math.isnan(x)) or (_numpy_nan(x)):
         raise ModelError(f"output {i} is {x!r}, expected a label")
     if isinstance(x, (list, tuple, dict, set)) or (hasattr(x, "shape") and getattr(x, "shape", ()) != ()):
@@ -90,6 +96,13 @@ def build_predictions(
         cls = [as_label(c, i) for i, c in enumerate(classes)]
         if len(set(cls)) != len(cls):
             raise ModelError(f"the classes {cls} repeat a label")
+    fast = _fast_probabilities(cols.get("probabilities"), n, cls) if cls is not None else None
+    if fast is not None and scores is None:
+        rows, best = fast
+        if labels is None:
+            return [Prediction(label=cls[b], probabilities=dict(zip(cls, row))) for row, b in zip(rows, best)]
+        return [Prediction(label=as_label(lab, i), probabilities=dict(zip(cls, row)))
+                for i, (lab, row) in enumerate(zip(cols["labels"], rows))]
     out = []
     for i in range(n):
         probs = None
@@ -114,12 +127,33 @@ def build_predictions(
     return out
 
 
+def _fast_probabilities(col: Any, n: int, cls: list[str]) -> tuple[list[list[float]], list[int]] | None:
+    """A well-formed float matrix, checked in one go (finite, >= 0, rows summing to 1): its rows
+    and each row's most probable column; ``None`` sends the caller down the per-value path,
+    which names the first bad value."""
+    try:
+        import numpy as np
+
+        arr = np.asarray(col)
+    except (TypeError, ValueError):
+        return None
+    if arr.dtype.kind != "f" or arr.shape != (n, len(cls)):
+        return None
+    if not np.isfinite(arr).all() or (arr < 0).any():
+        return None
+    if n and np.abs(arr.sum(axis=1) - 1.0).max() > PROBABILITY_TOLERANCE:
+        return None
+    return arr.tolist(), arr.argmax(axis=1).tolist()
+
+
 def prediction_from_item(x: Any, i: int) -> Prediction:
     """One output of a Python callable: a label, or a dict with ``label`` / ``probabilities``
     (label -> p) / ``score``, or a ready :class:`Prediction`."""
     if isinstance(x, Prediction):
         x = {"label": x.label, "score": x.score, "probabilities": x.probabilities}
-    if isinstance(x, Mapping):
+    if type(x) is str:  # the common case: a plain label
+        return Prediction(label=as_label(x, i))
+    if type(x) is dict or isinstance(x, Mapping):
         unknown = set(x) - {"label", "probabilities", "score"}
         if unknown:
             raise ModelError(f"output {i} has unknown keys {sorted(map(str, unknown))}; expected label, probabilities, score")

@@ -144,14 +144,18 @@ def score(
     lm = label_map(given, m, preds)
     where = f"model {m.spec}: "
     polar: dict[str, tuple[str, int, float, float | None]] = {}
+    per_label: dict[str, tuple[str, int, float]] = {}  # raw label -> (canonical, polarity, strength)
     for t in texts:
         p = preds[t]
-        lab = lm.canonical(p.label)
+        known = per_label.get(p.label)
+        if known is None:
+            lab = lm.canonical(p.label)
+            known = per_label[p.label] = (lab, lm.polarity_of(lab), lm.strength(lab))
         try:
             sc = polarity_score(p, lm, where)
         except PairflipError as err:
             raise PairflipError(f"{err} (text {t[:60]!r})") from None
-        polar[t] = (lab, lm.polarity_of(lab), lm.strength(lab), sc)
+        polar[t] = (known[0], known[1], known[2], sc)
     verdicts = []
     for pair in pairs:
         sl, sp, sst, ss = polar[pair.source]

@@ -33,14 +33,20 @@ class CountingModel:
         # test plumbing, so they stay out of the pickled state that the fingerprint hashes.
         return {}
 
-    def predict(self, texts):
+    def _record(self, texts):
+        # pairflip calls exactly one of predict / predict_proba per batch (predict_proba when
+        # the model has classes_), so counting in both counts each batch once
         self.calls += 1
         if self.calls == self.fail_on_call:
             raise self.exc
         self.received.extend(texts)
+
+    def predict(self, texts):
+        self._record(texts)
         return [keyword_rules.label(t) for t in texts]
 
     def predict_proba(self, texts):
+        self._record(texts)
         return [keyword_rules.probabilities(t) for t in texts]
 
 

@@ -55,6 +55,16 @@ def valid(nlp, lex, text: str, seed: int = 0) -> dict[str, set[str]]:
 CASES = [
     # coordination: adjectives, with and without the Oxford comma
     ("The tent is light, warm and cheap.", COORD, {"The tent is warm, cheap and light."}),
+    # precision: hashtags, glued compounds, conjuncts with their own modifiers, negated scopes
+    ("We had corned beef on rye and matzoh ball soup.", COORD, set()),
+    ("It has s-video and composite outputs.", COORD, set()),
+    ("#map apps and mobile users love maps.", COORD, set()),
+    ("No cables and no batteries needed.", COORD, set()),
+    ("The tent is warm in the rain and light.", COORD, set()),  # the PP would re-attach
+    ("The lid is not tight and secure.", COORD, set()),  # negated scope
+    ("The bag felt warm and very soft.", COORD, {"The bag felt very soft and warm."}),
+    ("The stove freezes every time it gets cold.", ADVL, set()),  # a clause-like NP
+    ("The zipper broke within a few minutes after I opened the box.", ADVL, set()),  # a clause inside
     ("The tent is light, warm, and cheap.", COORD, {"The tent is warm, cheap, and light."}),
     ("The tent was cold and damp.", COORD, {"The tent was damp and cold."}),
     ("The pack is very comfortable, really durable and quite cheap.", COORD,
@@ -64,13 +74,13 @@ CASES = [
     ("A light and warm bag.", COORD, {"A warm and light bag."}),
     # adverbs, noun phrases, verb phrases
     ("The filter works quickly and quietly.", COORD, {"The filter works quietly and quickly."}),
-    ("The poles and the stakes are sturdy.", COORD, {"The stakes and the poles are sturdy."}),
-    ("It is light and packs small.", COORD, {"It packs small and is light."}),
-    ("The stove heats quickly and shuts off cleanly.", COORD, {"The stove shuts off cleanly and heats quickly."}),
+    ("The poles and the stakes are sturdy.", COORD, set()),  # noun phrases: only adjectives and adverbs are rotated
+    ("It is light and packs small.", COORD, set()),  # verb phrases are never rotated
+    ("The stove heats quickly and shuts off cleanly.", COORD, set()),  # verb phrases
     # capitalisation at the sentence start; proper nouns keep theirs
-    ("Fast shipping and friendly service.", COORD, {"Friendly service and fast shipping."}),
+    ("Fast shipping and friendly service.", COORD, set()),  # noun phrases
     ("Warm and light, the bag packs small.", COORD, {"Light and warm, the bag packs small."}),
-    ("Mara and Tobin love the tent.", COORD, {"Tobin and Mara love the tent."}),
+    ("Mara and Tobin love the tent.", COORD, set()),  # names
     # questions keep their form
     ("Is it light and warm?", COORD, {"Is it warm and light?"}),
     # not reordered
@@ -89,11 +99,11 @@ CASES = [
     ("The stove is great, honestly.", ADVL, {"Honestly, the stove is great."}),  # the comma goes too
     ("The zipper broke, unfortunately.", ADVL, {"Unfortunately, the zipper broke."}),
     # adverbial: front -> end, comma removed
-    ("In the morning, the stove boils water quickly.", ADVL, {"The stove boils water quickly in the morning."}),
-    ("After two weeks, the zipper broke.", ADVL, {"The zipper broke after two weeks."}),
-    ("In March, Tobin bought the poles.", ADVL, {"Tobin bought the poles in March."}),
-    ("Yesterday the zipper broke.", ADVL, {"The zipper broke yesterday."}),
-    ("For the price, this stove is excellent.", ADVL, {"This stove is excellent for the price."}),
+    ("In the morning, the stove boils water quickly.", ADVL, set()),  # front to end: never (the phrase may re-attach at the end)
+    ("After two weeks, the zipper broke.", ADVL, set()),  # front to end: never
+    ("In March, Tobin bought the poles.", ADVL, set()),  # front to end: never
+    ("Yesterday the zipper broke.", ADVL, set()),  # front to end: never
+    ("For the price, this stove is excellent.", ADVL, set()),  # front to end: never
     # adverbial: skipped
     ("Unfortunately, the zipper broke.", ADVL, set()),  # "broke unfortunately" reads as manner
     ("The tent didn't leak in the rain.", ADVL, set()),  # negation scope
