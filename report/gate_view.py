@@ -136,14 +136,14 @@ def comparison_table(comp: Any) -> Table:
     old_name = escape(str(comp.old.get("name", "old")))
     new_name = escape(str(comp.new.get("name", "new")))
     t = Table(title=f"compare: old {old_name} vs new {new_name} (exact McNemar, Holm-adjusted across families)",
-              title_justify="left", box=box.SIMPLE_HEAD)
+              title_justify="left", box=box.SIMPLE_HEAD, pad_edge=False)
     t.add_column("family", no_wrap=True)
     t.add_column("pairs", justify="right", no_wrap=True)
     t.add_column("violations\nold -> new", justify="right", no_wrap=True)
-    t.add_column("only\nold / new", justify="right", no_wrap=True)
+    t.add_column("only\nold/new", justify="right", no_wrap=True)
     t.add_column("p", justify="right", no_wrap=True)
-    t.add_column("p (Holm)", justify="right", no_wrap=True)
-    t.add_column("change")
+    t.add_column("Holm p", justify="right", no_wrap=True)
+    t.add_column("change", min_width=6)
     for fam, fc in comp.families.items():
         style = {"worse": "red", "better": "green"}.get(fc.direction, "")
         _row(t, fam, str(fc.paired), f"{fc.old_violations} -> {fc.new_violations}",

@@ -81,7 +81,7 @@ CASES = [
     ("The tent leaks, the poles bend and the zipper sticks.", NO, NO),  # parser leaves "leaks" unattached
     ("The instructions could be clearer.", "negation/modal", "The instructions couldn't be clearer."),
     ("It's not the sturdiest tent, but it's cheap.", NO, NO),  # contrast
-    ("It's been working flawlessly.", "negation/modal", "It hasn't been working flawlessly."),
+    ("It's been working flawlessly.", NO, NO),  # extreme adverb: the negation gives a hedge
     ("She said the tent was excellent.", NO, NO),  # extreme word
     ("The seat is not uncomfortable.", "negation/removal", "The seat is uncomfortable."),
     ("I'm really impressed with how warm this bag is.", "negation/copula", "I'm not really impressed with how warm this bag is."),
@@ -92,7 +92,7 @@ CASES = [
     ("The lantern has been reliable.", "negation/modal", "The lantern hasn't been reliable."),
     ("It's been great.", "negation/modal", "It hasn't been great."),
     ("I have loved every minute.", NO, NO),  # "every": quantifier scope
-    ("They have worked perfectly for a year.", "negation/modal", "They haven't worked perfectly for a year."),
+    ("They have worked perfectly for a year.", NO, NO),  # extreme adverb: the negation gives a hedge
     ("I've enjoyed this jacket.", "negation/modal", "I haven't enjoyed this jacket."),
     ("The stove had failed twice.", "negation/modal", "The stove hadn't failed twice."),
     ("The poles could fail in the wind.", "negation/modal", "The poles couldn't fail in the wind."),
@@ -108,7 +108,7 @@ CASES = [
     ("They broke the first week.", "negation/do-support", "They didn't break the first week."),
     ("The fly tore on the second night.", "negation/do-support", "The fly didn't tear on the second night."),
     ("The hip belt fit snugly.", "negation/do-support", "The hip belt didn't fit snugly."),
-    ("The boots fit perfectly.", "negation/do-support", "The boots don't fit perfectly."),
+    ("The boots fit perfectly.", NO, NO),  # extreme adverb: the negation gives a hedge
     ("It works great.", "negation/do-support", "It doesn't work great."),
     ("I ordered the lamp and it flickers.", "negation/do-support", "I ordered the lamp and it doesn't flicker."),
     ("We went there and loved it.", "negation/do-support", "We went there and didn't love it."),
@@ -216,6 +216,15 @@ CASES = [
     ("People are concerned.", NO, NO),  # "concerned" is a reaction, not a review opinion
     ("I hate hate hate the zipper.", NO, NO),  # emphatic repetition
     ("It's so good.", "negation/copula", "It's not so good."),
+    ("It lasted just over one year.", NO, NO),  # an approximate measure: a fact, not an opinion
+    ("I love it, so I bought two.", NO, NO),  # consequence
+    ("The straps are comfortable; the lid is flimsy.", NO, NO),  # semicolon
+    ("Great gadget I bought last week.", NO, NO),  # the opinion is not on the predicate
+    ("I decided it was worth the price.", NO, NO),  # the opinion sits in the complement of "decide"
+    ("It isn't always accurate.", NO, NO),  # "not always": removal would not give the opposite
+    ("At least it's prettier than the last one.", NO, NO),  # comparative
+    ("It is easy to use and well made.", NO, NO),  # coordinated predicate: "isn't A and B" is unclear
+    ("Poor reliability.", "negation/fragment", "Not poor reliability."),  # a mass noun takes no article
     ("The stove is great.", "negation/copula", "The stove isn't great."),  # "great": read as the opposite when negated
     ("The tent is good. The stove is nice.", "negation/copula", "The tent isn't good. The stove isn't nice."),
 ]
