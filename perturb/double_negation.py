@@ -17,7 +17,7 @@ from typing import TYPE_CHECKING, Iterator
 
 from pairflip.perturb import grammar as g
 from pairflip.perturb.base import NEGATORS, Candidate, Context, TokenEdit, match_case
-from pairflip.perturb.negation import analyse, insertion, opinion_of, predicate_opinion
+from pairflip.perturb.negation import analyse, clause_doubt, insertion, opinion_of, predicate_opinion, text_guard
 
 if TYPE_CHECKING:  # pragma: no cover
     from spacy.tokens import Doc
@@ -32,6 +32,8 @@ RULES = {
 # Verbs that link a subject to an adjective ("it feels sturdy").
 LINKING = {"be", "look", "feel", "seem", "sound", "appear", "stay", "remain", "smell", "taste"}
 # "not uncomfortable" reads best written out; the other rules contract like the negation family.
+# "also", "too", "enough": the clause points at another one ("liked it enough to buy another").
+_ADDITIVE = frozenset({"also", "too", "enough"})
 _DEFAULT_STYLE = {"double-negation/prefix": g.FULL}
 
 
@@ -45,9 +47,13 @@ def candidates(doc: "Doc", ctx: Context) -> Iterator[Candidate]:
     polarities = {opinion_of(t, lex).polarity for cl in an.clauses for t in cl.opinion}
     if len(polarities) != 1 or any(cl.nonfinite_opinion for cl in an.clauses):
         return
+    if text_guard(doc, lex) is not None or any(g.norm(t.text) in _ADDITIVE for t in doc):
+        return  # contrasts, emoticons, interjections, hashtags, long texts: as for negation
     text_style = g.text_style(doc)
     for cl in an.clauses:
         head = cl.head
+        if cl.subj is None or clause_doubt(cl, lex) is not None:
+            continue  # imperatives ("Stay safe!"), relative clauses, hedges, coordinations
         # adjectives: "is clean" -> "isn't dirty"
         if g.base_form(head) in LINKING:
             for adj in cl.opinion:

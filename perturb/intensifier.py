@@ -36,6 +36,14 @@ enough, barely, ...) or any other adverb ("surprisingly cool"); stacked attribut
 ("a big roomy tent"); and texts whose opinion words disagree in polarity or that contain a
 contrast ("roomy but heavy"), since weakening one side of a mixed text may strengthen the other.
 
+Only words that carry the text's opinion are graded: predicative adjectives right after a
+linking verb (be, feel, look, seem, ...; "we turned poor" is a fact), attributive adjectives only
+in a plain "a/the ADJ NOUN" object, complement or fragment, and manner adverbs after verbs of
+function or opinion ("works reliably"). Never: names and capitalised words mid-sentence, words in
+capitals, fixed expressions ("clear as day", "good luck", "nice and relaxed", "you're welcome",
+"to be honest", "good to go"), repetitions ("sexy sexy"), adjectives that frame a clause ("glad
+he is home", "It was great to see you", "happy to help"), imperatives.
+
 An indefinite article before the edit is kept in agreement ("an easy setup" -> "a very easy
 setup").
 """
@@ -98,8 +106,14 @@ LINKING_VERBS = frozenset("be feel look seem sound stay remain appear taste smel
 FORMULA_NOUNS = frozenset(
     "luck morning night evening afternoon birthday bday anniversary holiday holidays christmas xmas "
     "easter halloween weekend year day week job deal riddance grief lord god heavens times time one "
-    "thing lot".split()
+    "thing lot chance".split()
 )
+# Adjectives that are mostly formulas or comparisons in reviews and tweets.
+FIXED_WORDS = frozenset({"welcome", "superior", "inferior", "preferable", "sorry", "thankful", "grateful"})
+# Adjectives that state willingness before an infinitive ("happy to help", "free to ask").
+WILLING = frozenset({"happy", "glad", "pleased", "proud", "sorry", "free", "willing", "eager", "ready", "sad"})
+# Infinitives of a social remark after "it is ADJ to" ("great to see you", "nice to meet you").
+SOCIAL_VERBS = frozenset({"see", "hear", "know", "meet", "have", "be", "get", "go", "talk", "chat", "read", "watch"})
 # Verbs whose manner says how well a product does its job ("works reliably", "fits well"),
 # besides the opinion verbs of the lexicon.
 FUNCTION_VERBS = frozenset(
@@ -189,10 +203,36 @@ def _name_like(tok: "Token") -> bool:
 
 
 def _fixed_context(tok: "Token") -> bool:
-    """Inside a fixed expression: a simile ("clear as day"), "nice and X", a repetition ("sexy sexy")."""
+    """Inside a fixed expression: a simile ("clear as day"), "nice and X", a repetition ("sexy sexy"),
+    a formula ("you're welcome", "good to go"), a compound ("sleek looking"), a comparison
+    ("superior to"), capitals ("PERFECT SKIN"), or an adjective that frames a clause ("glad he is
+    home", "It was great to see you")."""
     doc = tok.doc
     nxt = doc[tok.i + 1] if tok.i + 1 < len(doc) else None
     prev = doc[tok.i - 1] if tok.i > 0 else None
+    low = tok.lower_
+    if low in FIXED_WORDS or (tok.text.isupper() and len(tok.text) > 1):
+        return True
+    if low in ("honest", "frank", "fair", "sure") and tok.i >= 2 and doc[tok.i - 1].lower_ == "be" and doc[tok.i - 2].lower_ == "to":
+        return True  # "to be honest"
+    h = tok.head
+    if tok.dep_ in ("acomp", "attr") and h.tag_ == "VB" and not any(c.dep_ in ("nsubj", "aux", "nsubjpass") for c in h.children):
+        return True  # "be kind to each other": an imperative, no opinion stated
+    if any(c.lower_ == "better" and c.dep_ == "advmod" for c in h.children):
+        return True  # "had better be good": a warning
+    if nxt is not None and nxt.lower_ in ("looking", "sounding", "feeling", "tasting", "smelling"):
+        return True
+    if nxt is not None and nxt.lower_ == "to" and tok.i + 2 < len(doc) and doc[tok.i + 2].lower_ == "go":
+        return True  # "good to go"
+    if any(c.dep_ in ("ccomp", "advcl", "csubj") for c in tok.children):
+        return True  # "glad he is home", "feels good when ..."
+    if low in WILLING and any(c.dep_ == "xcomp" for c in tok.children):
+        return True  # "happy to test for you": willingness, not an opinion
+    head = tok.head if tok.dep_ in ("acomp", "attr") else None
+    if head is not None and any(c.dep_ == "nsubj" and c.lower_ in ("it", "that", "this") for c in head.children):
+        for c in [*tok.children, *head.children]:
+            if c.dep_ in ("ccomp", "advcl", "csubj") or (c.dep_ == "xcomp" and (c.tag_ == "VBG" or c.lower_ in SOCIAL_VERBS)):
+                return True  # "It was great to see you", "It is difficult being ..."
     if nxt is not None and nxt.lower_ == "as" and tok.pos_ == "ADJ":
         return True  # "clear as day", "light as a feather"
     if prev is not None and prev.lower_ == "and" and tok.i >= 2 and doc[tok.i - 2].lower_ in HENDIADYS:

@@ -19,6 +19,19 @@ Rules:
   "Very comfortable." -> "Not very comfortable.", "Poor quality." -> "Not poor quality.",
   "Best stove out there." -> "Not the best stove out there.", "Not bad." -> "Bad."
 
+Precision first (a skipped text costs little, a half-flipped pair misleads): the text is skipped
+when opinion or logic sits outside the negated clauses — emoticons, interjections, hashtags,
+emphatic capitals, elongations, contrasts (but, although, however, yet, ...), consequences ("so I
+bought it"), correlatives ("the more ..."), review headers ("Con: ..."), imperatives, numbered
+lists, semicolons, more than ``MAX_WORDS`` words, an opinion word outside every toggled clause, or
+a sentence with no toggled clause. A clause is skipped when its negation would give a hedge, not
+the opposite: extreme, superlative, comparative or capitalised opinion words ("isn't perfect",
+"wouldn't LOVE"), extreme amplifiers ("wasn't absolute garbage"), negative words with a degree
+word ("isn't very bad"), may/might/must and "can be", hedges (almost, mostly), approximate
+measures, and frequency adverbs where the negation cannot go ("*aren't mostly thrilled"). The
+opinion word must be the main predicate's (not a word in the subject, a relative clause or a
+noun-phrase modifier). See :func:`text_guard` and :func:`clause_doubt`.
+
 Subject-dropped clauses of review style count as clauses when their verb cannot be an imperative
 ("Works great." -> "Doesn't work great.", "Would recommend." -> "Wouldn't recommend."). Social-media
 tokens (@mentions, #hashtags, links, emoticons) are left untouched and never count as words of a
@@ -347,7 +360,8 @@ _FORMULA_NOUNS = {"morning", "night", "evening", "afternoon", "luck", "birthday"
                   "holiday", "holidays", "christmas", "xmas", "thanksgiving", "easter", "halloween",
                   "weekend", "year", "day", "monday", "tuesday", "wednesday", "thursday", "friday",
                   "saturday", "sunday", "valentine", "valentines", "mothers", "fathers", "job", "times",
-                  "riddance", "grief", "lord", "god", "heavens", "gosh", "one", "work", "going"}
+                  "riddance", "grief", "lord", "god", "heavens", "gosh", "one", "work", "going",
+                  "dreams", "dream", "wishes", "vibes"}
 _ALL_NEG = NEGATORS | OTHER_NEG
 # Sentence adverbs that may stand before a negated fragment ("So far, not so good", "Overall, not great").
 _SENTENCE_ADVS = {"far", "overall", "still", "honestly", "seriously", "just", "simply", "and", "but"}
@@ -590,6 +604,8 @@ def insertion(cl: Clause, style: str, new_base: str | None = None) -> tuple[str,
     doc = head.doc
     if subj is None and not dropped_subject(cl):
         return "no subject (imperative or fragment)"
+    if subj is not None and is_noise(subj):
+        return "a @mention read as the subject (imperative)"  # "@x Stay safe!"
     if cl.negated:
         return "already negated"
     for x in cl.own:
@@ -607,7 +623,7 @@ def insertion(cl: Clause, style: str, new_base: str | None = None) -> tuple[str,
     finite = cl.auxes[0] if cl.auxes else head
     if subj is not None and finite.i < subj.i:
         return "inverted word order"
-    if subj is not None and (subj.pos_ not in ("PRON", "NOUN", "PROPN", "NUM", "DET", "X") or g.norm(subj.text) in ("a", "an", "the")):
+    if subj is not None and (subj.pos_ not in ("PRON", "NOUN", "PROPN", "NUM", "DET", "X") or g.norm(subj.text) in ("a", "an", "the", "me", "him", "us", "them")):
         return f"doubtful subject {subj.text!r} (tagger slip)"
     if subj is not None and subj.dep_ == "nsubjpass" and not cl.auxes:
         return "passive subject without an auxiliary (tagger slip)"
@@ -788,7 +804,7 @@ INTERJECTIONS = frozenset(
     "rofl haha hahaha hehe ew eww yuck yikes wtf fml smh damn dammit darn oops ouch phew sigh alas "
     "aww awww ah ahh ahhh boo booo yes yess yesss yeah yep nope bah hmph woo oh ohh dear".split()
 )
-_INTERJ_RE = re.compile(r"^(?:y+a+y+|u+g+h+|a+r+g+h+|g+r+r+|w+o+w+|(?:ha){2,}h?|(?:he){2,}|l+o+l+|l+m+a+o+|o+m+g+|a+w+|y+e+s+|n+o{2,})$")
+_INTERJ_RE = re.compile(r"^(?:\w*(?:ha){2,}\w*|\w*(?:he){3,}|m+u+a+h+a+\w*|y+a+y+|u+g+h+|a+r+g+h+|g+r+r+|w+o+w+|(?:ha){2,}h?|(?:he){2,}|l+o+l+|l+m+a+o+|o+m+g+|a+w+|y+e+s+|n+o{2,})$")
 # Words after which the text turns, weighs two sides or draws a consequence.
 CONTRAST_WORDS = frozenset({"but", "although", "though", "however", "yet", "whereas", "except", "otherwise",
                             "nevertheless", "nonetheless", "still", "anyway", "despite", "instead"})
@@ -844,7 +860,9 @@ def text_guard(doc: "Doc", lexicon: "Lexicon") -> str | None:
     return doc.user_data[key]
 
 
-_ENUMERATION = re.compile(r"(?:^|\s)\(?\d{1,2}\)\s")
+_ENUMERATION = re.compile(r"(?:^|\s)\(?\d{1,2}\)\s|^\s*\d{1,2}\.\s")
+_ELONGATED = re.compile(r"([a-z])\1\1")
+_SOO = re.compile(r"^s+o{2,}$")
 _SO_DEGREE = frozenset({"much", "many", "far", "well", "little", "few", "badly", "quickly", "easily", "often"})
 _EMOTICON_IN_TEXT = re.compile(r"(?:^|\s)(?:[:;=8][-o'^]?[()DPpOo3\]\[/\\|*@$]|<3|[)(][-o']?[:;=])")
 # A negated clause in a long text rarely carries all of its opinion (common practice: the
@@ -855,60 +873,82 @@ MAX_WORDS = 30
 def _text_guard(doc: "Doc", lexicon: "Lexicon") -> str | None:
     from pairflip.perturb.base import doc_text
 
-    if _EMOTICON_IN_TEXT.search(doc_text(doc)):
-        return "emoticon"
-    if ";" in doc_text(doc):
+    text = doc_text(doc)
+    if ";" in text:
         return "clauses joined by a semicolon"
-    if _ENUMERATION.search(doc_text(doc)):
+    if _EMOTICON_IN_TEXT.search(text):
+        return "emoticon"
+    if _ENUMERATION.search(text):
         return "a numbered list"  # "1) frame freezes and ..."
-    for sent in sents(doc):
-        first = next((t for t in sent if t.is_alpha and not is_noise(t)), None)
-        if first is not None and first.tag_ in ("WP", "WRB", "WDT") and first.dep_ != "mark":
-            return f"wh-sentence {first.text!r}"  # "What's with the lack of ...": a question without "?"
-    for t in doc:
-        if g.norm(t.text) == "too" and (t.head.pos_ in ("VERB", "AUX") or t.i + 1 == len(doc) or doc[t.i + 1].is_punct):
-            return "additive 'too'"  # "... was easy too": it points at another clause
-    if sum(1 for t in doc if t.is_alpha) > MAX_WORDS:
+    toks = list(doc)  # one pass of Token objects (each doc[i] builds a new one)
+    texts = [t.text for t in toks]
+    if sum(1 for x in texts if x.isalpha()) > MAX_WORDS:
         return f"more than {MAX_WORDS} words"
+    lows = [g.norm(x) for x in texts]
+    n_tok = len(toks)
+    starts = {sp.start for sp in sents(doc)}
+    seen_word = False  # a word already seen in the current sentence
     caps_run = 0
-    for t in doc:
-        low = t.text.lower()
+    for i, t in enumerate(toks):
+        x, low = texts[i], lows[i]
+        prev_low = lows[i - 1] if i > 0 else ""
+        nxt = toks[i + 1] if i + 1 < n_tok else None
+        if i in starts:
+            seen_word = False
         if _is_emoticon(t):
-            return f"emoticon {t.text!r}"
-        if t.text[:1] == "#" and len(t.text) > 1:
+            return f"emoticon {x!r}"
+        if x[:1] == "#" and (len(x) > 1 or not t.whitespace_ and nxt is not None):
             # hashtags most often carry a stance ("#fail", "#bangin") the lexicon cannot read
-            return f"hashtag {t.text!r}" + (" (sentiment)" if _hashtag_opinion(t.text[1:], lexicon) else "")
-        if t.text[:1] == "@" or is_noise(t):
+            body = x[1:] or texts[i + 1]
+            return f"hashtag #{body}" + (" (sentiment)" if _hashtag_opinion(body, lexicon) else "")
+        if x[:1] == "@" or is_noise(t):
             continue
-        if low in INTERJECTIONS or (t.is_alpha and _INTERJ_RE.match(low)):
-            return f"interjection {t.text!r}"
+        alpha = x.isalpha()
+        if alpha and not seen_word:
+            seen_word = True
+            if t.tag_ in ("WP", "WRB", "WDT") and t.dep_ != "mark":
+                return f"wh-sentence {x!r}"  # "What's with the lack of ...": a question without "?"
+        if low in INTERJECTIONS or (alpha and _INTERJ_RE.match(low)):
+            return f"interjection {x!r}"
         if low in CONTRAST_WORDS and t.pos_ != "NOUN":
-            return f"contrast {t.text!r}"
+            return f"contrast {x!r}"
         if low == "while" and t.dep_ == "mark":
             return "contrast 'while'"
         if low in CONSEQUENCE_WORDS:
-            return f"consequence {t.text!r}"
+            return f"consequence {x!r}"
+        if low in ("hopefully", "fingers") or (low == "fact" and prev_low == "in"):
+            return f"frame {x!r}"  # "hopefully it will work", "in fact ...": a wish or a turn
+        if alpha and (_ELONGATED.search(low) or _SOO.match(low)):
+            return f"elongated word {x!r}"  # "soo good", "loooove": emphatic
+        if t.tag_ == "VB" and (t.dep_ in ("ROOT", "conj") or i in starts) and prev_low != "to" \
+                and not any((c.dep_ in _SUBJ_DEPS and not is_noise(c)) or c.dep_ in _AUX_DEPS for c in t.children):
+            return f"imperative {x!r}"  # "save time and just do it, you won't regret it"
+        if low == "too" and (t.head.pos_ in ("VERB", "AUX") or nxt is None or nxt.is_punct):
+            return "additive 'too'"  # "... was easy too": it points at another clause
         if low == "so":
-            nxt = doc[t.i + 1] if t.i + 1 < len(doc) else None
-            degree = nxt is not None and (nxt.pos_ == "ADJ" or g.norm(nxt.text) in _SO_DEGREE)
+            degree = nxt is not None and (nxt.pos_ == "ADJ" or lows[i + 1] in _SO_DEGREE)
+            if degree and (nxt.head.dep_ in ("ccomp", "advcl") and nxt.head.pos_ in ("VERB", "AUX")
+                           or any(c.dep_ in ("ccomp", "advcl") for y in (nxt, nxt.head) for c in y.children)):
+                degree = False  # "loved it so much i gave it away": a result clause
             if not degree:
                 return "consequence 'so'"
-        if low == "why" and t.i > 0 and g.norm(doc[t.i - 1].text) in ("that's", "is", "'s", "which"):
+        if low == "why" and prev_low in ("that's", "is", "'s", "which"):
             return "consequence 'that's why'"
-        if low == "the" and t.i + 1 < len(doc) and doc[t.i + 1].tag_ in ("JJR", "RBR") and (
-                t.i == 0 or doc[t.i - 1].is_punct or doc[t.i - 1].dep_ == "cc" or doc[t.i + 1].dep_ in ("advmod", "npadvmod")):
+        if low == "the" and nxt is not None and nxt.tag_ in ("JJR", "RBR") and (
+                i == 0 or toks[i - 1].is_punct or toks[i - 1].dep_ == "cc" or nxt.dep_ in ("advmod", "npadvmod")):
             return "correlative 'the more ... the more'"
-        if low in HEADER_WORDS and t.i + 1 < len(doc) and doc[t.i + 1].text in (":", "-", "--"):
-            return f"header {t.text!r}"
-        if t.is_alpha and t.text.isupper() and len(t.text) > 1 and t.text not in _ACRONYM_OK:
+        if low in HEADER_WORDS and nxt is not None and texts[i + 1] in (":", "-", "--"):
+            return f"header {x!r}"
+        if low == "as" and nxt is not None and lows[i + 1] in ("hell", "fuck", "heck", "f"):
+            return "emphatic 'as hell'"
+        if alpha and nxt is not None and lows[i + 1] == low and opinion_of(t, lexicon) is not None:
+            return f"emphatic repetition {x!r}"  # "HATE HATE", "sexy sexy"
+        if alpha and x.isupper() and len(x) > 1 and x not in _ACRONYM_OK:
             caps_run += 1
             if caps_run >= 2 or opinion_of(t, lexicon) is not None or low in EXTREME_DEGREE or low in lexicon.intensifiers:
-                return f"emphatic capitals {t.text!r}"
-        elif t.is_alpha:
+                return f"emphatic capitals {x!r}"
+        elif alpha:
             caps_run = 0
-    for a, b in zip(doc, doc[1:]):  # "HATE HATE", "sexy sexy": emphatic repetition
-        if a.is_alpha and a.lower_ == b.lower_ and opinion_of(a, lexicon) is not None:
-            return f"emphatic repetition {a.text!r}"
     return None
 
 
@@ -983,10 +1023,33 @@ def _insertion_guard(cl: Clause, main: list["Token"], lexicon: "Lexicon") -> str
         n = g.norm(x.text)
         if n == "only":
             return "focus 'only'"  # "that wasn't the only drawback"
+        if n in ("more", "less") and x.i + 1 < len(doc) and g.norm(doc[x.i + 1].text) == "than":
+            return f"'{n} than'"  # "i am not more than pleased"
         if n == "times" and x.i > 0 and g.norm(doc[x.i - 1].text) == "at":
             return "'at times'"
     if cl.subj is not None and cl.subj.dep_ == "expl":
         return "existential 'there'"  # "there is also not a lack": wants "no"
+    if cl.auxes and g.aux_word(cl.auxes[0]) == "can" and g.base_form(cl.head) == "be":
+        return "'can be' states a possibility"  # "this can be a problem" -> "can't be a problem" is no opposite
+    if any(g.norm(x.text) in ("about", "around", "roughly") and x.head.dep_ in ("pobj", "npadvmod", "prep") or
+           g.norm(x.text) in ("about", "around") and x.dep_ in ("advmod", "quantmod") for x in cl.own):
+        return "an approximate measure"  # "worked great for about a month"
+    if any(g.aux_word(a) == "would" for a in cl.auxes) and any(c.dep_ == "xcomp" for c in cl.head.children):
+        return "a wish ('would love to')"  # "would hate to know": hypothetical, not an opinion
+    for t in main:
+        if any(g.norm(c.text) == "as" and c.dep_ == "advmod" for c in t.children):
+            return "equative 'as ... as'"  # "doesn't sound just as good as": a comparison
+    keep = {t.i for t in predicate_opinion(cl)} | {cl.head.i}
+    for t in cl.opinion:
+        if t.i in keep or (t.dep_ == "amod" and t.head.i in keep):
+            continue
+        h = t
+        while h.i != cl.head.i and h.head.i != h.i:
+            if h.i != t.i and h.pos_ in ("NOUN", "PROPN") and h.i not in keep:
+                return f"opinion word {t.text!r} off the predicate"  # "love reinforcement for my vulgar behavior"
+            h = h.head
+        if t.pos_ in ("NOUN", "PROPN") and t.dep_ in ("pobj", "conj", "appos"):
+            return f"opinion word {t.text!r} off the predicate"  # "bright, easy to see, with nice colors"
     for t in main:
         entry = opinion_of(t, lexicon)
         degree = [c for c in t.children if c.dep_ == "advmod" and g.norm(c.text) in _DEGREE_HEDGE]
@@ -994,7 +1057,7 @@ def _insertion_guard(cl: Clause, main: list["Token"], lexicon: "Lexicon") -> str
             degree += [c for c in cl.head.children if c.dep_ == "advmod" and g.norm(c.text) in _DEGREE_HEDGE and c.i < cl.head.i]
         if entry is not None and entry.polarity < 0 and degree:
             return f"negative opinion with {degree[0].text!r}"  # "isn't very bad", "don't really hate": hedges
-    if main and all(t.pos_ in ("NOUN", "PROPN") for t in main):
+    if main and all(t.pos_ in ("NOUN", "PROPN") or (t.dep_ == "amod" and t.head.dep_ == "dobj") for t in main):
         verb = lemma(cl.head).lower()
         if verb not in _HAVE_BE and opinion_of(cl.head, lexicon) is None:
             return f"opinion noun under the plain verb {cl.head.text!r}"  # "listed the problem": a report
@@ -1054,6 +1117,44 @@ def _frequency_after_aux(cl: Clause) -> "Token | None":
     return None
 
 
+def clause_doubt(cl: Clause, lexicon: "Lexicon") -> str | None:
+    """Why toggling this opinion clause would not give a clear opposite (a hedge, a part flip, a
+    misplaced negation), or None. Shared by negation and double negation."""
+    if is_noise(cl.head):
+        return "a link or tag read as a verb"
+    if not _main_like(cl.head):
+        return f"opinion clause is a {cl.head.dep_} (not a main clause)"  # "those who don't like it are ..."
+    for t in cl.own:
+        if t.i != cl.head.i and t.tag_ in ("VBZ", "VBD", "VBP") and t.dep_ in ("ccomp", "conj", "parataxis", "advcl", "dep"):
+            if any(c.dep_ in _SUBJ_DEPS for c in t.children):
+                return f"a finite clause {t.text!r} folded into the clause"  # "I hate X I hate X": one negation would not reach the rest
+        if t.dep_ == "conj" and t.head.i == cl.head.i and t.pos_ in ("NOUN", "PROPN") and cl.head.pos_ in ("VERB", "AUX"):
+            return f"noun {t.text!r} conjoined to the verb (parser slip)"  # "this sucks, the service from apex sucks"
+    if any((t.like_num or t.pos_ == "NUM") and _measured(t) for t in cl.own):
+        return "a measure in the clause"  # "didn't last just over one year": a factual measure
+    if any(t.dep_ == "conj" and t.head.i != cl.head.i and t.pos_ in ("ADJ", "NOUN", "ADV", "VERB")
+           and (t.head.i in {x.i for x in predicate_opinion(cl)} or t.head.dep_ in ("acomp", "xcomp", "attr", "oprd", "advmod"))
+           for t in cl.own):
+        return "coordinated opinion predicate"  # "isn't very easy and very good": not (A and B) is unclear
+    for x in cl.own:
+        if g.norm(x.text) in _HEDGES and x.dep_ in ("advmod", "npadvmod"):
+            return f"hedge {x.text!r}"  # "didn't work almost perfectly"
+    main = _main_opinion(cl, lexicon)
+    if not main:
+        return "no opinion word on the predicate"  # "the worst attack was led by ...": a factual claim
+    for t in cl.opinion:
+        why = _emphasised(t, lexicon, inserting=not cl.negated)
+        if why is not None:
+            return why
+    if not cl.negated:
+        why = _insertion_guard(cl, main, lexicon)
+        if why is not None:
+            return why
+    if not cl.negated and _frequency_after_aux(cl) is not None:
+        return f"adverb {_frequency_after_aux(cl).text!r} after the auxiliary"
+    return None
+
+
 def clause_style(doc: "Doc", default: str = DEFAULT_STYLE) -> str:
     return g.text_style(doc) or default
 
@@ -1083,32 +1184,9 @@ def plan(doc: "Doc", ctx: Context) -> "Candidate | str":
     for cl in clauses:
         if cl.nonfinite_opinion:
             return "opinion in a non-finite adverbial"
-        if is_noise(cl.head):
-            return "a link or tag read as a verb"
-        if not _main_like(cl.head):
-            return f"opinion clause is a {cl.head.dep_} (not a main clause)"  # "those who don't like it are ..."
-        if any((t.like_num or t.pos_ == "NUM") and _measured(t) for t in cl.own):
-            return "a measure in the clause"  # "didn't last just over one year": a factual measure
-        if any(t.dep_ == "conj" and t.head.i != cl.head.i and t.pos_ in ("ADJ", "NOUN", "ADV", "VERB")
-               and (t.head.i in {x.i for x in predicate_opinion(cl)} or t.head.dep_ in ("acomp", "xcomp", "attr", "oprd", "advmod"))
-               for t in cl.own):
-            return "coordinated opinion predicate"  # "isn't very easy and very good": not (A and B) is unclear
-        for x in cl.own:
-            if g.norm(x.text) in _HEDGES and x.dep_ in ("advmod", "npadvmod"):
-                return f"hedge {x.text!r}"  # "didn't work almost perfectly"
-        main = _main_opinion(cl, ctx.lexicon)
-        if not main:
-            return "no opinion word on the predicate"  # "the worst attack was led by ...": a factual claim
-        for t in cl.opinion:
-            why = _emphasised(t, ctx.lexicon, inserting=not cl.negated)
-            if why is not None:
-                return why
-        if not cl.negated:
-            why = _insertion_guard(cl, main, ctx.lexicon)
-            if why is not None:
-                return why
-        if not cl.negated and _frequency_after_aux(cl) is not None:
-            return f"adverb {_frequency_after_aux(cl).text!r} after the auxiliary"
+        why = clause_doubt(cl, ctx.lexicon)
+        if why is not None:
+            return why
         if len({opinion_of(t, ctx.lexicon).polarity for t in predicate_opinion(cl)}) > 1:
             return "mixed polarity in one predicate"  # "heavy but durable": a negation would not reverse the clause
         own_ids = {t.i for t in cl.own}
@@ -1146,6 +1224,12 @@ def plan(doc: "Doc", ctx: Context) -> "Candidate | str":
         for t in sent_of(fr.root):
             if opinion_of(t, ctx.lexicon) is not None and _emphasised(t, ctx.lexicon) is not None:
                 return "fragment: " + str(_emphasised(t, ctx.lexicon))
+    # every opinion word of the text must sit in a toggled clause (or fragment): "I hate X I hate X"
+    # parsed as one clause and a loose rest, "this sucks, the service sucks" with one clause seen
+    inside = {t.i for cl in an.clauses for t in cl.own} | {t.i for fr in an.fragments for t in sent_of(fr.root)}
+    for t in doc:
+        if t.i not in inside and opinion_of(t, ctx.lexicon) is not None:
+            return f"opinion word {t.text!r} outside the toggled clauses"
     # every sentence with words of its own must be toggled: a sentence left as it is keeps
     # whatever opinion the lexicon cannot see ("3) 4x zoom is nice 4) the great thing ...")
     touched = {sent_of(cl.head).start for cl in clauses} | {sent_of(fr.root).start for fr in an.fragments}
@@ -1160,6 +1244,9 @@ def plan(doc: "Doc", ctx: Context) -> "Candidate | str":
     for o in an.others:
         if not _embedded(o) and g.aux_kind(o.head) == "be" and any(c.dep_ in ("acomp", "attr") and c.pos_ in ("ADJ", "NOUN") for c in o.head.children):
             return "a plain clause may carry an unseen opinion"  # "and it is mostly idiot proof"
+        if not _embedded(o) and o.head.tag_ == "VBN" and any(c.dep_ == "auxpass" for c in o.head.children) \
+                and not any(c.dep_ in ("dobj", "agent") for c in o.head.children):
+            return "a plain clause may carry an unseen opinion"  # "our kids were devastated"
         if o.subj is None and o.head.tag_ == "VB" and o.head.dep_ in ("ROOT", "conj") and not o.auxes:
             return "an imperative in the text"  # "throw a phone and you're asking for trouble"
     if not edits:

@@ -3,9 +3,12 @@
 Rules:
 
 ``reorder/coordination`` (hold)
-    Rotate the conjuncts of an "and"/"or" coordination of the same kind (adjectives, adverbs,
-    noun phrases, prepositional phrases, present-tense verb phrases): "light, warm and cheap"
-    -> "warm, cheap and light". Commas and the coordinator stay where they are, so an Oxford
+    Rotate the conjuncts of an "and"/"or" coordination of single adjectives or manner adverbs
+    (each optionally after its degree adverbs): "light, warm and cheap" -> "warm, cheap and
+    light". Nouns, verb phrases and prepositional phrases are not rotated (their modifiers
+    re-attach: "corned beef on rye and soup"), nor conjuncts glued to a hyphen, slash, hashtag or
+    link ("s-video"), negated scopes ("no X and no Y"), identity words ("same or similar"),
+    correlatives ("either ... or") and loose list items with colons or dashes. Commas and the coordinator stay where they are, so an Oxford
     comma is kept when the text has one. "but"/"yet" coordinations are never reordered: the
     second conjunct carries the weight of a contrast ("cheap but sturdy" praises, "sturdy but
     cheap" warns), so the order is part of what is said. Also skipped: fixed binomials
@@ -16,8 +19,11 @@ Rules:
     in it").
 ``reorder/adverbial`` (hold)
     Move a time, place, condition or frame adverbial of the main verb from the end to the front
-    with a comma ("... quickly in the morning." -> "In the morning, ... quickly."), or from the
-    front to the end without it. Skipped: questions; sentences with negation or focus words
+    with a comma ("... quickly in the morning." -> "In the morning, ... quickly."); never to the
+    end, where it may attach to the last noun ("... a gift after less than 24 hours"). Only a clean
+    prepositional phrase or adverb with no verb, coordination or approximation inside ("every
+    time it freezes", "every 10 minutes or so"), no "for" durations, not under verbs of duration
+    or placement, not in sentences with mentions, hashtags, links or colons. Skipped: questions; sentences with negation or focus words
     (not, never, only, even, just, also, too), whose scope the move would change; phrases that
     are arguments rather than adjuncts (directional "to the campground", the predicate of
     "is in the garage", durations to completion "in two hours"); and sentence adverbs whose move
@@ -137,6 +143,7 @@ CONTRAST = frozenset({"but", "yet", "although", "though", "while", "whereas", "h
 # beef on rye and soup").
 SAFE_KINDS = frozenset({"adj", "adv"})
 MOVE_TO_END = False
+NOT_SCALAR = frozenset({"same", "similar", "other", "different", "next", "last", "first", "only", "own", "such"})
 CONTENT_POS = frozenset({"NOUN", "PROPN", "VERB", "ADJ", "ADV", "NUM"})
 
 
@@ -165,7 +172,8 @@ def _span_text(doc: "Doc", a: int, b: int, *, initial: bool, was_initial: bool) 
     text = doc[a:b].text
     if initial:
         # only where the sentence had a capital: all-lower-case text stays lower case
-        first = doc[sent_of(doc[a]).start]
+        sent = sent_of(doc[a])
+        first = next((t for t in sent if t.is_alpha), doc[sent.start])
         return text[:1].upper() + text[1:] if first.text[:1].isupper() else text
     if was_initial and not _keeps_capital(doc[a]):
         return text[:1].lower() + text[1:]
@@ -275,6 +283,12 @@ def _coordination(sent: "Span", ctx: Context) -> Iterator[Candidate]:
             continue  # "dark, stuffy and hard to move around in": the infinitive goes with the last one
         if not all(_plain_conjunct(doc, a, b, t) for (a, b), t in zip(spans, conj)):
             continue
+        if any(t.text in (":", "-", "--", "(", ")") or t.lower_ in ("either", "neither", "both", "whether") for t in sent):
+            continue  # loose list items ("pros: size - small and ..."), correlatives ("either ... or")
+        if any(t.lower_ in NOT_SCALAR for t in conj):
+            continue  # "the same or similar problems": identity words, not qualities
+        if kind == "adv" and any(not (t.lower_.endswith("ly") or lex.lookup(t.lower_, "ADV")) or t.lower_ in FOCUS_WORDS for t in conj):
+            continue  # "configured properly or just isn't": only manner adverbs
         if any(g.lower_ in NEGATORS or any(c.lower_ in NEGATORS or c.dep_ == "neg" for c in g.children)
                for g in {head, head.head}):
             continue  # "no X and no Y needed": the negation's scope changes with the order
@@ -432,6 +446,12 @@ def _adverbial(sent: "Span", ctx: Context) -> Iterator[Candidate]:
         if (
             adv.right_edge.i == last
             and adv.dep_ in ("prep", "advmod", "npadvmod")
+            and lemma(root) not in DURATION_VERBS | ARGUMENT_VERBS
+            and not (adv.lower_ == "for" and not any(t.lower_ in ("price", "money", "cost") for t in adv.subtree))
+            and not any(t.dep_ in ("cc", "conj") or t.lower_ in ("about", "around", "roughly", "every", "each")
+                        or t.text[:1] in "@#" for t in adv.subtree)
+            and not any(t.text[:1] in "@#" or t.like_url or t.text == ":" for t in sent)
+            and not (adv.dep_ == "npadvmod" and any(t.like_num for t in adv.subtree))
             and not any(t.pos_ in ("VERB", "AUX") or t.dep_ in ("relcl", "acl", "advcl", "mark") for t in adv.subtree)
             and _adjunct(adv, root)
             and subj.left_edge.i == sent.start

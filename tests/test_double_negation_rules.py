@@ -92,6 +92,14 @@ CASES = [
     ("The stove is excellent.", NO, NO),  # extreme: "not awful" is faint praise
     ("The tent is cheaper than mine.", NO, NO),  # comparative
     ("It was easy to set up and easy to take down.", NO, NO),
+    # the negation family's precision guards hold here too
+    ("The stove is quiet, but the lid rattles.", NO, NO),  # contrast
+    ("The stove is quiet :)", NO, NO),  # emoticon
+    ("Me like.", NO, NO),  # object-case subject: "Me don't dislike"
+    ("I liked this one enough to buy another.", NO, NO),  # "enough": points at another clause
+    ("The lid looks clean also.", NO, NO),  # additive "also"
+    ("Stay safe!", NO, NO),  # imperative
+    ("@sam Stay safe!", NO, NO),  # imperative with a mention the parser takes for its subject
 ]
 
 

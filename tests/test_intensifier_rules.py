@@ -137,6 +137,19 @@ CASES = [
     ("The kids were sexy sexy.", AMP, set()),  # repetition
     ("The guide uncomfortable.", AMP, set()),  # noun + adjective: no plain fragment
     ("I bought a sturdy tent.", AMP, {"I bought a very sturdy tent."}),  # plain object
+    ("You're welcome!", SOFT, set()),  # formula
+    ("I am glad he is home.", SOFT, set()),  # the adjective frames a clause
+    ("It was great to see you last night.", AMP, set()),  # a social remark, not a verdict
+    ("The kit is good to go.", SOFT, set()),  # idiom
+    ("The stove is sleek looking.", SOFT, set()),  # compound "sleek looking"
+    ("The lid is superior to the old one.", AMP, set()),  # a comparison
+    ("A PERFECT stove.", AMP, set()),  # capitals: emphatic already
+    ("There is a good chance it rains.", SOFT, set()),  # likelihood, not an opinion
+    ("Be kind to each other.", AMP, set()),  # imperative
+    ("To be honest, it can wait.", SOFT, set()),  # idiom
+    ("This party had better be good.", SOFT, set()),  # a warning
+    ("Happy to test it for you.", SOFT, set()),  # willingness
+    ("It installs properly.", AMP, set()),  # "properly" is not gradable: "very properly" is odd
     ("The stove seems reliable.", SOFT, {"The stove seems fairly reliable."}),  # linking verb
 ]
 

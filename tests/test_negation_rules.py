@@ -76,7 +76,7 @@ CASES = [
     ("The tent is great because it never leaks.", "negation/copula", "The tent isn't great because it leaks."),
     ("These are the most painful boots I have ever worn.", NO, NO),  # superlative
     ("The tent didn't leak a drop.", NO, NO),  # minimiser
-    ("I'm really disappointed that the zipper broke.", "negation/copula", "I'm not really disappointed that the zipper broke."),
+    ("I'm really disappointed that the zipper broke.", NO, NO),  # "not really disappointed" is a hedge
     ("The kids loved the tent and the dog did too.", NO, NO),  # elliptical "did" echoes "loved"
     ("The tent leaks, the poles bend and the zipper sticks.", NO, NO),  # parser leaves "leaks" unattached
     ("The instructions could be clearer.", "negation/modal", "The instructions couldn't be clearer."),
@@ -148,7 +148,7 @@ CASES = [
     ("Does it leak?", NO, NO),
     ("Why is the zipper so flimsy?", NO, NO),
     ("Love it!", NO, NO),
-    ("Buy this tent, it is great.", "negation/copula", "Buy this tent, it isn't great."),
+    ("Buy this tent, it is great.", NO, NO),  # "Buy this tent, it isn't great" is incoherent: imperatives are skipped
     ("Don't buy this flimsy tent.", NO, NO),
     ("If it breaks, I will return it.", NO, NO),
     ("Unless it leaks, the tent is great.", NO, NO),
@@ -224,6 +224,35 @@ CASES = [
     ("It isn't always accurate.", NO, NO),  # "not always": removal would not give the opposite
     ("At least it's prettier than the last one.", NO, NO),  # comparative
     ("It is easy to use and well made.", NO, NO),  # coordinated predicate: "isn't A and B" is unclear
+    ("The manual is very bad.", NO, NO),  # "isn't very bad" is a hedge
+    ("I really hate the bus stop.", NO, NO),  # "don't really hate" likewise
+    ("That was the only drawback.", NO, NO),  # focus "only"
+    ("There is a lack of pockets.", NO, NO),  # existential: wants "no", not "not a"
+    ("I called them and listed the problem.", NO, NO),  # an opinion noun under a report verb
+    ("What's with the flimsy zipper.", NO, NO),  # wh-sentence
+    ("1) the lid leaks and the pot is heavy.", NO, NO),  # numbered list
+    ("The stove is reliable #camping", NO, NO),  # hashtag
+    ("The stove is reliable and the lid was good too.", NO, NO),  # additive "too"
+    ("I hate Joomla I hate Joomla I hate Joomla I hate Joomla", NO, NO),  # run-on parsed as one clause: one negation would not reach it all
+    ("I hate this lid I hate this lid I hate this lid", "negation/do-support",
+     "I don't hate this lid I don't hate this lid I don't hate this lid"),  # parsed as three clauses: all toggled
+    ("this product sucks, the customer service from apex sucks.", NO, NO),  # comma splice misparsed
+    ("He loved the stove so much I gave it to him.", NO, NO),  # result clause "so much (that)"
+    ("I love the reinforcement for my rude behavior.", NO, NO),  # an opinion word off the predicate
+    ("The lid sounds just as good as the old one.", NO, NO),  # equative comparison
+    ("I would love to try it.", NO, NO),  # a wish
+    ("It's annoying as hell.", NO, NO),  # emphatic "as hell"
+    ("Muahaha, the stove works.", NO, NO),  # laughter interjection
+    ("The lid didn't work, and the kids were devastated.", NO, NO),  # the second clause keeps its unseen opinion
+    ("Or save time and just buy it, you won't regret it.", NO, NO),  # imperative
+    ("Hopefully the new one will work fine.", NO, NO),  # a wish
+    ("The stove is soo good.", NO, NO),  # elongated, emphatic
+    ("This can be a problem in the cold.", NO, NO),  # "can't be" is no opposite of "can be"
+    ("It worked great for about a month.", NO, NO),  # approximate measure
+    ("2. i was not comfortable with that.", NO, NO),  # numbered list
+    ("I just heard a cool new word.", NO, NO),  # opinion on the object of a report verb
+    ("So far I am more than pleased.", NO, NO),  # "not more than pleased" is no opposite
+    ("Sweet dreams...", NO, NO),  # a wish
     ("Poor reliability.", "negation/fragment", "Not poor reliability."),  # a mass noun takes no article
     ("The stove is great.", "negation/copula", "The stove isn't great."),  # "great": read as the opposite when negated
     ("The tent is good. The stove is nice.", "negation/copula", "The tent isn't good. The stove isn't nice."),

@@ -64,6 +64,13 @@ CASES = [
     ("The lid is not tight and secure.", COORD, set()),  # negated scope
     ("The bag felt warm and very soft.", COORD, {"The bag felt very soft and warm."}),
     ("The stove freezes every time it gets cold.", ADVL, set()),  # a clause-like NP
+    ("I have had this stove for about five months.", ADVL, set()),  # a duration of the perfect
+    ("The lid pops open every ten minutes or so.", ADVL, set()),  # frequency with "or so"
+    ("I told @sam about it yesterday.", ADVL, set()),  # a tweet with a mention
+    ("We had the same or similar problems.", COORD, set()),  # identity words
+    ("It either works properly or just stops.", COORD, set()),  # correlative "either ... or"
+    ("Pros: size - small and light.", COORD, set()),  # a loose list item
+    ("Battery on: 6 hours, off: 8 hours.", ADVL, set()),  # list with colons
     ("The zipper broke within a few minutes after I opened the box.", ADVL, set()),  # a clause inside
     ("The tent is light, warm, and cheap.", COORD, {"The tent is warm, cheap, and light."}),
     ("The tent was cold and damp.", COORD, {"The tent was damp and cold."}),
