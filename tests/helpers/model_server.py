@@ -86,10 +86,10 @@ class ModelServer:
             self._send(handler, 200, self.body)
             return
         out = answer(texts, self.with_probabilities)
-        self._send(handler, 200, json.dumps(out).encode("utf-8"))
-        if fault is None:
+        if fault is None:  # recorded before the answer leaves, so a client never sees it first
             with self._lock:
                 self.texts_answered.extend(texts)
+        self._send(handler, 200, json.dumps(out).encode("utf-8"))
 
     @staticmethod
     def _send(handler: BaseHTTPRequestHandler, status: int, body: bytes) -> None:
