@@ -367,3 +367,15 @@ def doc_text(doc: "Doc") -> str:
     if text is None:
         text = doc.user_data["pairflip.text"] = doc.text
     return text
+
+
+def is_question(sent: Any) -> bool:
+    """The sentence ends with a question mark (``sent.text.rstrip().endswith("?")``, without
+    rebuilding the sentence's text)."""
+    doc = sent.doc
+    for i in range(sent.end - 1, sent.start - 1, -1):
+        t = doc[i]
+        if t.is_space:
+            continue
+        return t.text.rstrip().endswith("?")
+    return False

@@ -52,7 +52,7 @@ from __future__ import annotations
 
 from typing import TYPE_CHECKING, Iterator
 
-from pairflip.perturb.base import NEGATORS, Candidate, Context, TokenEdit, lemma, sent_of, sents
+from pairflip.perturb.base import NEGATORS, Candidate, Context, TokenEdit, is_question, lemma, sent_of, sents
 from pairflip.perturb.lexicon import OpinionWord
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -139,7 +139,7 @@ def candidates(doc: "Doc", ctx: Context) -> Iterator[Candidate]:
         return
     for tok, (entry, role) in targets:
         sent = sent_of(tok)
-        if sent.text.rstrip().endswith("?") or _negated(tok) or _irrealis(tok, role):
+        if is_question(sent) or _negated(tok) or _irrealis(tok, role):
             continue
         yield from _edits_for(doc, tok, entry, role, degree)
 
@@ -150,6 +150,11 @@ def candidates(doc: "Doc", ctx: Context) -> Iterator[Candidate]:
 def _target(tok: "Token", lex: "Lexicon") -> tuple["OpinionWord", str] | None:
     """(lexicon entry, role) when ``tok`` is an opinion word we may grade; role is
     ``attributive``, ``predicative``, ``adverb`` or ``verb``."""
+    low = tok.lower_
+    if lex.lookup(low, "ADJ") is None and lex.lookup(low, "ADV") is None and not (
+        tok.pos_ == "VERB" and lemma(tok) in STANCE_VERBS
+    ):  # cheap first: only opinion words can be targets (every branch below needs an entry)
+        return None
     if tok.tag_ in ("JJR", "JJS", "RBR", "RBS"):
         return None
     if _name_like(tok) or _fixed_context(tok):

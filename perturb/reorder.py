@@ -45,7 +45,7 @@ from __future__ import annotations
 
 from typing import TYPE_CHECKING, Iterator
 
-from pairflip.perturb.base import NEGATORS, PUNCT_CLOSE, Candidate, Context, TokenEdit, lemma, sent_of, sents
+from pairflip.perturb.base import NEGATORS, PUNCT_CLOSE, Candidate, Context, TokenEdit, is_question, lemma, sent_of, sents
 from pairflip.perturb.intensifier import _is_adjective, indefinite_article, match_article
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -189,7 +189,7 @@ def _last_word(sent: "Span") -> int:
 
 
 def _is_question(sent: "Span") -> bool:
-    return sent.text.rstrip().endswith("?")
+    return is_question(sent)
 
 
 # --- coordination ----------------------------------------------------------------------------
