@@ -41,6 +41,8 @@ def candidates(doc: "Doc", ctx: Context) -> Iterator[Candidate]:
     lex = ctx.lexicon
     if any(g.norm(t.text) in NEGATORS for t in doc):
         return
+    if text_guard(doc, lex) is not None:  # cheap whole-text checks before the clause analysis
+        return
     an = analyse(doc, lex)
     if an.unsure or not an.clauses or any(t.dep_ == "dep" for cl in an.clauses for t in cl.own):
         return

@@ -1168,8 +1168,11 @@ def candidates(doc: "Doc", ctx: Context) -> Iterator[Candidate]:
 
 def plan(doc: "Doc", ctx: Context) -> "Candidate | str":
     """The one candidate for ``doc`` (every opinion clause toggled), or why there is none."""
+    why = text_guard(doc, ctx.lexicon)  # cheap whole-text checks first: most skips end here
+    if why is not None:
+        return why
     an = analyse(doc, ctx.lexicon)
-    why = doubtful(an) or text_guard(doc, ctx.lexicon)
+    why = doubtful(an)
     if why is not None:
         return why
     by_head = {cl.head.i: cl for cl in an.clauses}

@@ -247,8 +247,11 @@ def _conjunct_span(tok: "Token", kind: str, others: set[int]) -> tuple[int, int]
 def _coordination(sent: "Span", ctx: Context) -> Iterator[Candidate]:
     doc = sent.doc
     lex = ctx.lexicon
-    for head in sent:
-        if head.dep_ == "conj" or not any(c.dep_ == "conj" for c in head.children):
+    # heads with a "conj" child, found in one pass over the tokens (not a scan of every token's children)
+    conj_heads = sorted({t.head.i for t in sent if t.dep_ == "conj" and t.head.i != t.i})
+    for hi in conj_heads:
+        head = doc[hi]
+        if head.dep_ == "conj" or not (sent.start <= hi < sent.end):
             continue
         conj = _conjuncts(head)
         if not 2 <= len(conj) <= 5:
