@@ -379,3 +379,12 @@ def is_question(sent: Any) -> bool:
             continue
         return t.text.rstrip().endswith("?")
     return False
+
+
+def tokens(doc: "Doc") -> list[Any]:
+    """``list(doc)``, made once per doc: ``doc[i]`` and ``for t in doc`` build a new Token object
+    on every access, which is most of what the rules cost."""
+    toks = doc.user_data.get("pairflip.tokens")
+    if toks is None:
+        toks = doc.user_data["pairflip.tokens"] = list(doc)
+    return toks

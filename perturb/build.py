@@ -142,6 +142,9 @@ def iter_pairs(
     n_done = 0
     for doc, st in nlp.pipe(admitted(), **pipe_kwargs):
         n_done += 1
+        # spaCy keeps the text verbatim, so doc.text == st.text; give the rules the string we
+        # already hold rather than have spaCy rebuild it from every token
+        doc.user_data["pairflip.text"] = st.text
         made_here = 0
         for fam, rules in selected.items():
             for pair in _pairs_for_doc(doc, st, modules[fam], rules, seed, lexicon, max_per_rule, stats, nlp if recheck else None):

@@ -16,7 +16,7 @@ from __future__ import annotations
 from typing import TYPE_CHECKING, Iterator
 
 from pairflip.perturb import grammar as g
-from pairflip.perturb.base import NEGATORS, Candidate, Context, TokenEdit, match_case
+from pairflip.perturb.base import NEGATORS, Candidate, Context, TokenEdit, match_case, tokens
 from pairflip.perturb.negation import analyse, clause_doubt, insertion, opinion_of, predicate_opinion, text_guard
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -39,7 +39,7 @@ _DEFAULT_STYLE = {"double-negation/prefix": g.FULL}
 
 def candidates(doc: "Doc", ctx: Context) -> Iterator[Candidate]:
     lex = ctx.lexicon
-    if any(g.norm(t.text) in NEGATORS for t in doc):
+    if any(g.norm(t.text) in NEGATORS for t in tokens(doc)):
         return
     if text_guard(doc, lex) is not None:  # cheap whole-text checks before the clause analysis
         return
@@ -49,7 +49,7 @@ def candidates(doc: "Doc", ctx: Context) -> Iterator[Candidate]:
     polarities = {opinion_of(t, lex).polarity for cl in an.clauses for t in cl.opinion}
     if len(polarities) != 1 or any(cl.nonfinite_opinion for cl in an.clauses):
         return
-    if text_guard(doc, lex) is not None or any(g.norm(t.text) in _ADDITIVE for t in doc):
+    if text_guard(doc, lex) is not None or any(g.norm(t.text) in _ADDITIVE for t in tokens(doc)):
         return  # contrasts, emoticons, interjections, hashtags, long texts: as for negation
     text_style = g.text_style(doc)
     for cl in an.clauses:

@@ -52,7 +52,7 @@ from __future__ import annotations
 
 from typing import TYPE_CHECKING, Iterator
 
-from pairflip.perturb.base import NEGATORS, Candidate, Context, TokenEdit, is_question, lemma, sent_of, sents
+from pairflip.perturb.base import NEGATORS, Candidate, Context, TokenEdit, is_question, lemma, sent_of, sents, tokens
 from pairflip.perturb.lexicon import OpinionWord
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -128,10 +128,10 @@ EXCLAMATIVE = frozenset({"what", "such", "quite", "rather"})
 def candidates(doc: "Doc", ctx: Context) -> Iterator[Candidate]:
     """Every intensifier edit the parse supports, in text order."""
     lex = ctx.lexicon
-    if any(t.lower_ in CONTRAST and t.pos_ != "NOUN" for t in doc):  # "after a while" is no contrast
+    if any(t.lower_ in CONTRAST and t.pos_ != "NOUN" for t in tokens(doc)):  # "after a while" is no contrast
         return
     degree = _degree_phrases(lex)
-    targets = [(tok, hit) for tok in doc for hit in [_target(tok, lex)] if hit is not None]
+    targets = [(tok, hit) for tok in tokens(doc) for hit in [_target(tok, lex)] if hit is not None]
     if not targets:
         return
     polarities = {_effective_polarity(t, h) for t, h in _opinion_tokens(doc, lex)}
@@ -203,7 +203,7 @@ def _name_like(tok: "Token") -> bool:
     doc = tok.doc
     if tok.pos_ == "PROPN" or _capitalised_mid(tok):
         return True
-    nxt = doc[tok.i + 1] if tok.i + 1 < len(doc) else None
+    nxt = tokens(doc)[tok.i + 1] if tok.i + 1 < len(doc) else None
     return nxt is not None and (nxt.pos_ == "PROPN" or _capitalised_mid(nxt))
 
 
@@ -213,12 +213,12 @@ def _fixed_context(tok: "Token") -> bool:
     ("superior to"), capitals ("PERFECT SKIN"), or an adjective that frames a clause ("glad he is
     home", "It was great to see you")."""
     doc = tok.doc
-    nxt = doc[tok.i + 1] if tok.i + 1 < len(doc) else None
-    prev = doc[tok.i - 1] if tok.i > 0 else None
+    nxt = tokens(doc)[tok.i + 1] if tok.i + 1 < len(doc) else None
+    prev = tokens(doc)[tok.i - 1] if tok.i > 0 else None
     low = tok.lower_
     if low in FIXED_WORDS or (tok.text.isupper() and len(tok.text) > 1):
         return True
-    if low in ("honest", "frank", "fair", "sure") and tok.i >= 2 and doc[tok.i - 1].lower_ == "be" and doc[tok.i - 2].lower_ == "to":
+    if low in ("honest", "frank", "fair", "sure") and tok.i >= 2 and tokens(doc)[tok.i - 1].lower_ == "be" and tokens(doc)[tok.i - 2].lower_ == "to":
         return True  # "to be honest"
     h = tok.head
     if tok.dep_ in ("acomp", "attr") and h.tag_ == "VB" and not any(c.dep_ in ("nsubj", "aux", "nsubjpass") for c in h.children):
@@ -227,7 +227,7 @@ def _fixed_context(tok: "Token") -> bool:
         return True  # "had better be good": a warning
     if nxt is not None and nxt.lower_ in ("looking", "sounding", "feeling", "tasting", "smelling"):
         return True
-    if nxt is not None and nxt.lower_ == "to" and tok.i + 2 < len(doc) and doc[tok.i + 2].lower_ == "go":
+    if nxt is not None and nxt.lower_ == "to" and tok.i + 2 < len(doc) and tokens(doc)[tok.i + 2].lower_ == "go":
         return True  # "good to go"
     if any(c.dep_ in ("ccomp", "advcl", "csubj") for c in tok.children):
         return True  # "glad he is home", "feels good when ..."
@@ -240,7 +240,7 @@ def _fixed_context(tok: "Token") -> bool:
                 return True  # "It was great to see you", "It is difficult being ..."
     if nxt is not None and nxt.lower_ == "as" and tok.pos_ == "ADJ":
         return True  # "clear as day", "light as a feather"
-    if prev is not None and prev.lower_ == "and" and tok.i >= 2 and doc[tok.i - 2].lower_ in HENDIADYS:
+    if prev is not None and prev.lower_ == "and" and tok.i >= 2 and tokens(doc)[tok.i - 2].lower_ in HENDIADYS:
         return True  # "nice and relaxed" = pleasantly relaxed
     return (nxt is not None and nxt.lower_ == tok.lower_) or (prev is not None and prev.lower_ == tok.lower_)
 
@@ -343,13 +343,13 @@ def _adverb_grade(word: str, grade: str, lex: "Lexicon") -> str:
 
 def _as_well(tok: "Token") -> bool:
     doc = tok.doc
-    before = doc[tok.i - 1].lower_ if tok.i > 0 else ""
-    after = doc[tok.i + 1].lower_ if tok.i + 1 < len(doc) else ""
+    before = tokens(doc)[tok.i - 1].lower_ if tok.i > 0 else ""
+    after = tokens(doc)[tok.i + 1].lower_ if tok.i + 1 < len(doc) else ""
     return before == "as" or after == "as"
 
 
 def _opinion_tokens(doc: "Doc", lex: "Lexicon") -> Iterator[tuple["Token", "OpinionWord"]]:
-    for tok in doc:
+    for tok in tokens(doc):
         if tok.tag_ in ("JJR", "JJS", "RBR", "RBS"):
             continue
         hit = None
@@ -424,14 +424,14 @@ def _left_modifier(tok: "Token", degree: dict[tuple[str, ...], str]) -> tuple[in
         kind = degree.get(words)
         if kind is None:
             continue
-        last = doc[tok.i - 1]
+        last = tokens(doc)[tok.i - 1]
         if n == 1 and last.head.i != tok.i:
             return (start, "other")
-        if start > sent_start and (doc[start - 1].lower_ in OTHER_DEGREE | {"very", "really", "not"} or doc[start - 1].text == ","):
+        if start > sent_start and (tokens(doc)[start - 1].lower_ in OTHER_DEGREE | {"very", "really", "not"} or tokens(doc)[start - 1].text == ","):
             return (start, "other")  # "so very", "not really"
         return (start, kind)
     if tok.i > sent_start:
-        prev = doc[tok.i - 1]
+        prev = tokens(doc)[tok.i - 1]
         if prev.lower_ in OTHER_DEGREE or prev.tag_ in ("RB", "RBR", "RBS") and prev.head.i == tok.i:
             return (tok.i - 1, "other")
     return None
@@ -443,7 +443,7 @@ def _left_modifier(tok: "Token", degree: dict[tuple[str, ...], str]) -> tuple[in
 def _edits_for(doc: "Doc", tok: "Token", entry: "OpinionWord", role: str, degree: dict) -> Iterator[Candidate]:
     mod = _left_modifier(tok, degree)
     k = (mod[0] if mod else tok.i) - 1  # the article, if any, is right before the edit
-    if k - 1 >= sent_of(tok).start and doc[k].lower_ in ARTICLES and doc[k - 1].lower_ in EXCLAMATIVE:
+    if k - 1 >= sent_of(tok).start and tokens(doc)[k].lower_ in ARTICLES and tokens(doc)[k - 1].lower_ in EXCLAMATIVE:
         return  # "What a great lantern!", "such a roomy tent", "quite a heavy pack"
     base_meta = {"target": tok.text, "polarity": entry.polarity, "grade": entry.grade, "role": role}
     if role == "verb":
@@ -451,11 +451,11 @@ def _edits_for(doc: "Doc", tok: "Token", entry: "OpinionWord", role: str, degree
             yield _candidate(doc, tok, mod[0], [], "intensifier/remove", dict(base_meta, op="remove"))
         return
     extreme = entry.grade == "extreme"
-    nxt = doc[tok.i + 1] if tok.i + 1 < len(doc) else None
+    nxt = tokens(doc)[tok.i + 1] if tok.i + 1 < len(doc) else None
     if tok.lower_ in HENDIADYS and nxt is not None and nxt.lower_ == "and":
         return  # "nice and light" means "pleasantly light": "very nice and light" loses that
     if mod is None:
-        prev = doc[tok.i - 1] if tok.i > sent_of(tok).start else None
+        prev = tokens(doc)[tok.i - 1] if tok.i > sent_of(tok).start else None
         if role == "attributive" and prev is not None and prev.tag_ in ("JJ", "JJR", "JJS", "NN", "VBN", "VBG"):
             return  # stacked modifiers: "a big roomy tent"
         if prev is not None and prev.lower_ == "such":
@@ -497,11 +497,11 @@ def _candidate(doc: "Doc", tok: "Token", start: int, new_words: list[str], rule:
     keeping an indefinite article before it in agreement and the sentence's capital in place."""
     region_start = start
     words: list[tuple[str, "Token | None"]] = [(w, None) for w in new_words] + [(tok.text, tok)]
-    article = doc[start - 1] if start > sent_of(tok).start else None
+    article = tokens(doc)[start - 1] if start > sent_of(tok).start else None
     if article is not None and article.lower_ in ARTICLES and article.tag_ == "DT":
         region_start = start - 1
         words.insert(0, (match_article(indefinite_article(words[0][0]), article.text), article))
-    first = doc[region_start]
+    first = tokens(doc)[region_start]
     if first.i == sent_of(first).start and first.text[:1].isupper():
         out = []
         for k, (w, src) in enumerate(words):

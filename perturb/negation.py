@@ -47,7 +47,7 @@ from typing import TYPE_CHECKING, Iterator
 
 from pairflip.perturb import grammar as g
 from pairflip.perturb.intensifier import _adverb_grade
-from pairflip.perturb.base import NEGATORS, Candidate, Context, TokenEdit, lemma, match_case, sent_of, sents
+from pairflip.perturb.base import NEGATORS, Candidate, Context, TokenEdit, lemma, match_case, sent_of, sents, tokens
 
 if TYPE_CHECKING:  # pragma: no cover
     from spacy.tokens import Doc, Token
@@ -176,8 +176,8 @@ def _opinion_of(tok: "Token", lexicon: "Lexicon"):
     if pos is None or not tok.is_alpha:
         return None
     doc = tok.doc
-    if (tok.i > 0 and doc[tok.i - 1].text in ("-", "/") and not doc[tok.i - 1].whitespace_) or (
-            tok.i + 1 < len(doc) and doc[tok.i + 1].text in ("-", "/") and not tok.whitespace_):
+    if (tok.i > 0 and tokens(doc)[tok.i - 1].text in ("-", "/") and not tokens(doc)[tok.i - 1].whitespace_) or (
+            tok.i + 1 < len(doc) and tokens(doc)[tok.i + 1].text in ("-", "/") and not tok.whitespace_):
         return None  # "tax-the-rich", "s-video": part of a compound, not an opinion
     if g.norm(tok.text) == "well" and tok.i > 0 and g.norm(tok.doc[tok.i - 1].text) == "as":
         return None  # "as well"
@@ -277,15 +277,15 @@ def analyse(doc: "Doc", lexicon: "Lexicon") -> Analysis:
 
 
 def _analyse(doc: "Doc", lexicon: "Lexicon") -> Analysis:
-    heads = {t.i for t in doc if _is_finite_head(t)}
+    heads = {t.i for t in tokens(doc) if _is_finite_head(t)}
     clauses: list[Clause] = []
     fragments: list[Fragment] = []
     unsure: str | None = None
     has_opinion = False
-    for t in doc:
+    for t in tokens(doc):
         if g.norm(t.text) in _COND_MARKS and t.dep_ in ("mark", "advmod", "prep", "cc", "ROOT"):
             unsure = unsure or "conditional"
-        if g.norm(t.text) == "not" and t.i + 1 < len(doc) and g.norm(doc[t.i + 1].text) == "only":
+        if g.norm(t.text) == "not" and t.i + 1 < len(doc) and g.norm(tokens(doc)[t.i + 1].text) == "only":
             unsure = unsure or "not only"
     for sent in sents(doc):
         is_question = any("?" in t.text for t in sent)
@@ -454,7 +454,7 @@ def fragment(sent, lexicon: "Lexicon") -> Fragment | str:
         # the adjective and the degree words right before it: "not very comfortable"
         p = root.i
         doc = root.doc
-        while p - 1 >= sent.start and doc[p - 1].pos_ == "ADV" and g.norm(doc[p - 1].text) in _DEGREE:
+        while p - 1 >= sent.start and tokens(doc)[p - 1].pos_ == "ADV" and g.norm(tokens(doc)[p - 1].text) in _DEGREE:
             p -= 1
         if negs:
             if len(negs) == 1 and g.norm(negs[0].text) == "not" and negs[0].i == p - 1 and _lead_ok(sent, p - 1):
@@ -465,7 +465,7 @@ def fragment(sent, lexicon: "Lexicon") -> Fragment | str:
         if any(t.i < p and t.dep_ != "punct" and not is_noise(t) and t.head.i == root.i
                and g.norm(t.text) not in _SENTENCE_ADVS for t in sent):
             return "unexpected word before the adjective"  # "moderately impressed": no "not" inside
-        return Fragment(root, [_not_before(doc[p], "not")], 1, 0)
+        return Fragment(root, [_not_before(tokens(doc)[p], "not")], 1, 0)
     if root.pos_ != "NOUN":
         return f"root is {root.pos_}"
     if g.norm(root.text) in _FORMULA_NOUNS or lemma(root).lower() in _FORMULA_NOUNS:
@@ -554,7 +554,7 @@ def predicate_opinion(cl: Clause) -> list["Token"]:
 
 def _first_alpha_after(tok: "Token") -> "Token | None":
     doc = tok.doc
-    return doc[tok.i + 1] if tok.i + 1 < len(doc) else None
+    return tokens(doc)[tok.i + 1] if tok.i + 1 < len(doc) else None
 
 
 def aux_negation(tok: "Token", style: str) -> list[TokenEdit] | None:
@@ -571,9 +571,9 @@ def aux_negation(tok: "Token", style: str) -> list[TokenEdit] | None:
             return [TokenEdit(tok.i, tok.i + 1, tok.text + " not")]
         full = g.aux_word(tok)
         neg = g.negative_aux(full, g.CONTRACTED if style == g.CONTRACTED else g.FULL)
-        if neg is None or tok.i == 0 or doc[tok.i - 1].whitespace_:
+        if neg is None or tok.i == 0 or tokens(doc)[tok.i - 1].whitespace_:
             return None
-        prev = doc[tok.i - 1]  # I've -> I haven't, it'll -> it won't, I'd -> I wouldn't
+        prev = tokens(doc)[tok.i - 1]  # I've -> I haven't, it'll -> it won't, I'd -> I wouldn't
         return [TokenEdit(prev.i, tok.i + 1, f"{prev.text} {neg}")]
     word = g.aux_word(tok)
     neg = g.negative_aux(word, style)
@@ -610,15 +610,15 @@ def insertion(cl: Clause, style: str, new_base: str | None = None) -> tuple[str,
         return "already negated"
     for x in cl.own:
         n = g.norm(x.text)
-        if n == "little" and x.i > 0 and g.norm(doc[x.i - 1].text) == "a":
+        if n == "little" and x.i > 0 and g.norm(tokens(doc)[x.i - 1].text) == "a":
             return "hedge 'a little'"
-        if n == "all" and x.i + 1 < len(doc) and g.norm(doc[x.i + 1].text) in _TIME_NOUNS | {"the"}:
+        if n == "all" and x.i + 1 < len(doc) and g.norm(tokens(doc)[x.i + 1].text) in _TIME_NOUNS | {"the"}:
             continue  # "all night", "all the way"
         if n in ("ever", "yet", "anymore"):
             return f"negative-polarity word {x.text!r} already licensed (superlative)"
         if n == "most" and x.dep_ == "advmod":
             continue  # the superlative "the most painful", not the quantifier "most bottles"
-        if n in PPI or n in SCOPE_WORDS or (n == "too" and x.head.pos_ in ("VERB", "AUX")) or (n == "well" and x.i > 0 and g.norm(doc[x.i - 1].text) == "as"):
+        if n in PPI or n in SCOPE_WORDS or (n == "too" and x.head.pos_ in ("VERB", "AUX")) or (n == "well" and x.i > 0 and g.norm(tokens(doc)[x.i - 1].text) == "as"):
             return f"positive-polarity word {x.text!r}"
     finite = cl.auxes[0] if cl.auxes else head
     if subj is not None and finite.i < subj.i:
@@ -672,8 +672,8 @@ def insertion(cl: Clause, style: str, new_base: str | None = None) -> tuple[str,
     # the negation goes before "really/always" but after "definitely/also"
     run: list[Token] = []
     j = head.i - 1
-    while j > (subj.i if subj is not None else sent_of(head).start - 1) and doc[j].pos_ == "ADV" and doc[j].head.i == head.i:
-        run.insert(0, doc[j])
+    while j > (subj.i if subj is not None else sent_of(head).start - 1) and tokens(doc)[j].pos_ == "ADV" and tokens(doc)[j].head.i == head.i:
+        run.insert(0, tokens(doc)[j])
         j -= 1
     if any(g.norm(r.text) not in AFTER_NEG_ADVS | PRE_NEG_ADVS for r in run):
         return f"adverb {run[0].text!r} before the verb"  # "I mostly like" -> "I don't mostly like"
@@ -704,17 +704,17 @@ def removal(cl: Clause) -> list[TokenEdit] | str:
         n = g.norm(x.text)
         if n in SCOPE_WORDS:
             return f"scope word {x.text!r}"  # "isn't always accurate" -> "is always accurate" is no opposite
-        if n in NPI or (n == "all" and x.i > 0 and g.norm(doc[x.i - 1].text) == "at"):
+        if n in NPI or (n == "all" and x.i > 0 and g.norm(tokens(doc)[x.i - 1].text) == "at"):
             return f"negative-polarity word {x.text!r}"
-        if n in _MINIMISERS and x.i > 0 and g.norm(doc[x.i - 1].text) == "a":
+        if n in _MINIMISERS and x.i > 0 and g.norm(tokens(doc)[x.i - 1].text) == "a":
             return f"minimiser 'a {x.text}'"
-    nxt = doc[neg.i + 1] if neg.i + 1 < len(doc) else None
+    nxt = tokens(doc)[neg.i + 1] if neg.i + 1 < len(doc) else None
     if nxt is not None and g.norm(nxt.text) in _NOT_FOLLOWERS:
         return f"'{neg.text} {nxt.text}' is an idiom"
     n = g.norm(neg.text)
     if n == "never":
         return [TokenEdit(neg.i, neg.i + 1, "")]
-    prev = doc[neg.i - 1] if neg.i > 0 else None
+    prev = tokens(doc)[neg.i - 1] if neg.i > 0 else None
     if prev is None:
         return "negation at the start"
     if prev.i in {a.i for a in cl.auxes} or (prev.i == head.i and g.aux_kind(head) == "be"):
@@ -880,7 +880,7 @@ def _text_guard(doc: "Doc", lexicon: "Lexicon") -> str | None:
         return "emoticon"
     if _ENUMERATION.search(text):
         return "a numbered list"  # "1) frame freezes and ..."
-    toks = list(doc)  # one pass of Token objects (each doc[i] builds a new one)
+    toks = list(doc)  # one pass of Token objects (each tokens(doc)[i] builds a new one)
     texts = [t.text for t in toks]
     if sum(1 for x in texts if x.isalpha()) > MAX_WORDS:
         return f"more than {MAX_WORDS} words"
@@ -1001,7 +1001,7 @@ _APPROX = frozenset({"just", "over", "about", "around", "than", "under", "only",
 def _measured(num: "Token") -> bool:
     """A number in an approximate measure or a duration ("just over one year", "for about a month")."""
     doc = num.doc
-    prev = g.norm(doc[num.i - 1].text) if num.i > 0 else ""
+    prev = g.norm(tokens(doc)[num.i - 1].text) if num.i > 0 else ""
     if prev in _APPROX:
         return True
     h = num
@@ -1023,9 +1023,9 @@ def _insertion_guard(cl: Clause, main: list["Token"], lexicon: "Lexicon") -> str
         n = g.norm(x.text)
         if n == "only":
             return "focus 'only'"  # "that wasn't the only drawback"
-        if n in ("more", "less") and x.i + 1 < len(doc) and g.norm(doc[x.i + 1].text) == "than":
+        if n in ("more", "less") and x.i + 1 < len(doc) and g.norm(tokens(doc)[x.i + 1].text) == "than":
             return f"'{n} than'"  # "i am not more than pleased"
-        if n == "times" and x.i > 0 and g.norm(doc[x.i - 1].text) == "at":
+        if n == "times" and x.i > 0 and g.norm(tokens(doc)[x.i - 1].text) == "at":
             return "'at times'"
     if cl.subj is not None and cl.subj.dep_ == "expl":
         return "existential 'there'"  # "there is also not a lack": wants "no"
@@ -1111,7 +1111,7 @@ def _frequency_after_aux(cl: Clause) -> "Token | None":
         return None  # do-support: the adverbs before the verb are checked in insertion()
     finite = cl.auxes[0] if cl.auxes else cl.head
     doc = finite.doc
-    nxt = doc[finite.i + 1] if finite.i + 1 < len(doc) else None
+    nxt = tokens(doc)[finite.i + 1] if finite.i + 1 < len(doc) else None
     if nxt is not None and nxt.pos_ == "ADV" and g.norm(nxt.text) not in _AFTER_AUX_OK | PRE_NEG_ADVS:
         return nxt
     return None
@@ -1230,7 +1230,7 @@ def plan(doc: "Doc", ctx: Context) -> "Candidate | str":
     # every opinion word of the text must sit in a toggled clause (or fragment): "I hate X I hate X"
     # parsed as one clause and a loose rest, "this sucks, the service sucks" with one clause seen
     inside = {t.i for cl in an.clauses for t in cl.own} | {t.i for fr in an.fragments for t in sent_of(fr.root)}
-    for t in doc:
+    for t in tokens(doc):
         if t.i not in inside and opinion_of(t, ctx.lexicon) is not None:
             return f"opinion word {t.text!r} outside the toggled clauses"
     # every sentence with words of its own must be toggled: a sentence left as it is keeps

@@ -45,7 +45,7 @@ from __future__ import annotations
 
 from typing import TYPE_CHECKING, Iterator
 
-from pairflip.perturb.base import NEGATORS, PUNCT_CLOSE, Candidate, Context, TokenEdit, is_question, lemma, sent_of, sents
+from pairflip.perturb.base import NEGATORS, PUNCT_CLOSE, Candidate, Context, TokenEdit, is_question, lemma, sent_of, sents, tokens
 from pairflip.perturb.intensifier import _is_adjective, indefinite_article, match_article
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -172,10 +172,10 @@ def _span_text(doc: "Doc", a: int, b: int, *, initial: bool, was_initial: bool) 
     text = doc[a:b].text
     if initial:
         # only where the sentence had a capital: all-lower-case text stays lower case
-        sent = sent_of(doc[a])
-        first = next((t for t in sent if t.is_alpha), doc[sent.start])
+        sent = sent_of(tokens(doc)[a])
+        first = next((t for t in sent if t.is_alpha), tokens(doc)[sent.start])
         return text[:1].upper() + text[1:] if first.text[:1].isupper() else text
-    if was_initial and not _keeps_capital(doc[a]):
+    if was_initial and not _keeps_capital(tokens(doc)[a]):
         return text[:1].lower() + text[1:]
     return text
 
@@ -250,7 +250,7 @@ def _coordination(sent: "Span", ctx: Context) -> Iterator[Candidate]:
     # heads with a "conj" child, found in one pass over the tokens (not a scan of every token's children)
     conj_heads = sorted({t.head.i for t in sent if t.dep_ == "conj" and t.head.i != t.i})
     for hi in conj_heads:
-        head = doc[hi]
+        head = tokens(doc)[hi]
         if head.dep_ == "conj" or not (sent.start <= hi < sent.end):
             continue
         conj = _conjuncts(head)
@@ -276,13 +276,13 @@ def _coordination(sent: "Span", ctx: Context) -> Iterator[Candidate]:
         # only commas and the coordinator between the conjuncts
         if not all(spans[k][1] <= spans[k + 1][0] for k in range(len(spans) - 1)):
             continue
-        between = [doc[i] for k in range(len(spans) - 1) for i in range(spans[k][1], spans[k + 1][0])]
+        between = [tokens(doc)[i] for k in range(len(spans) - 1) for i in range(spans[k][1], spans[k + 1][0])]
         if any(not (t.text == "," or t.i == ccs[0].i) for t in between) or ccs[0].i not in {t.i for t in between}:
             continue
         if ccs[0].i > spans[-1][0] or ccs[0].i < spans[-2][1]:
             continue  # the coordinator must come right before the last conjunct
         after = spans[-1][1]
-        if kind in ("adj", "adv") and after < sent.end and doc[after].lower_ == "to" and doc[after].head.i not in ids:
+        if kind in ("adj", "adv") and after < sent.end and tokens(doc)[after].lower_ == "to" and tokens(doc)[after].head.i not in ids:
             continue  # "dark, stuffy and hard to move around in": the infinitive goes with the last one
         if not all(_plain_conjunct(doc, a, b, t) for (a, b), t in zip(spans, conj)):
             continue
@@ -311,8 +311,8 @@ def _coordination(sent: "Span", ctx: Context) -> Iterator[Candidate]:
             edits.append(TokenEdit(a, b, text))
         # keep "a"/"an" in agreement with the new first word ("an easy and quick" -> "a quick and easy")
         a0 = spans[0][0]
-        if a0 > sent.start and doc[a0 - 1].lower_ in ("a", "an") and doc[a0 - 1].tag_ == "DT":
-            art = doc[a0 - 1]
+        if a0 > sent.start and tokens(doc)[a0 - 1].lower_ in ("a", "an") and tokens(doc)[a0 - 1].tag_ == "DT":
+            art = tokens(doc)[a0 - 1]
             new_art = match_article(indefinite_article(doc[spans[order[0]][0]].text), art.text)
             if new_art != art.text:
                 edits.insert(0, TokenEdit(art.i, art.i + 1, new_art))
@@ -326,14 +326,14 @@ def _plain_conjunct(doc: "Doc", a: int, b: int, head: "Token") -> bool:
     """A conjunct that is one word, or one word after its degree adverbs ("very light"), with no
     glued hyphen, slash, hashtag or link on either side ("s-video", "#map", "a/b")."""
     for i in range(a, b):
-        t = doc[i]
+        t = tokens(doc)[i]
         if i != head.i and not (t.dep_ == "advmod" and t.head.i == head.i and i < head.i and not list(t.children)):
             return False
         if t.text[:1] in "#@" or t.like_url or any(ch in t.text for ch in "-/_#@"):
             return False
-    if a > 0 and not doc[a - 1].whitespace_ and doc[a - 1].text in ("-", "/", "#", "@", "&", "+"):
+    if a > 0 and not tokens(doc)[a - 1].whitespace_ and tokens(doc)[a - 1].text in ("-", "/", "#", "@", "&", "+"):
         return False
-    if b < len(doc) and not doc[b - 1].whitespace_ and doc[b].text in ("-", "/", "&", "+"):
+    if b < len(doc) and not tokens(doc)[b - 1].whitespace_ and tokens(doc)[b].text in ("-", "/", "&", "+"):
         return False
     return True
 
@@ -462,12 +462,12 @@ def _adverbial(sent: "Span", ctx: Context) -> Iterator[Candidate]:
             and not (adv.dep_ == "advmod" and adv.lower_ in TIME_ADVERBS and len(right) == 1 and lemma(root) == "be")
         ):
             a = adv.left_edge.i
-            prev = doc[a - 1]
+            prev = tokens(doc)[a - 1]
             has_comma = prev.text == ","
             if not (adv.lower_ in STANCE_ADVERBS and not has_comma):  # "works honestly": a manner reading
                 cut = a - 1 if has_comma else a
                 moved = _span_text(doc, a, last + 1, initial=True, was_initial=False)
-                first = doc[sent.start]
+                first = tokens(doc)[sent.start]
                 edits = [TokenEdit(sent.start, sent.start, moved + ",")]
                 low = _span_text(doc, sent.start, sent.start + 1, initial=False, was_initial=True)
                 if low != first.text:
@@ -483,7 +483,7 @@ def _adverbial(sent: "Span", ctx: Context) -> Iterator[Candidate]:
     if left and left[0].left_edge.i == sent.start:
         adv = left[0]
         b = adv.right_edge.i + 1
-        has_comma = b < len(doc) and doc[b].text == ","
+        has_comma = b < len(doc) and tokens(doc)[b].text == ","
         nxt = b + 1 if has_comma else b
         if (
             adv.dep_ in ("prep", "npadvmod", "advmod")
@@ -495,7 +495,7 @@ def _adverbial(sent: "Span", ctx: Context) -> Iterator[Candidate]:
             moved = _span_text(doc, sent.start, b, initial=False, was_initial=True)
             edits = [TokenEdit(sent.start, nxt, "")]
             cap = _span_text(doc, nxt, nxt + 1, initial=True, was_initial=False)
-            if cap != doc[nxt].text:
+            if cap != tokens(doc)[nxt].text:
                 edits.append(TokenEdit(nxt, nxt + 1, cap))
             edits.append(TokenEdit(last + 1, last + 1, moved))
             yield Candidate(
@@ -526,7 +526,7 @@ def _clauses(sent: "Span", ctx: Context) -> Iterator[Candidate]:
     last = _last_word(sent)
     if subj1[0].left_edge.i != sent.start or second.left_edge.i != cc.i + 1 or _right_word(second) != last:
         return
-    end1 = cc.i - 1 if doc[cc.i - 1].text == "," else cc.i
+    end1 = cc.i - 1 if tokens(doc)[cc.i - 1].text == "," else cc.i
     if end1 <= sent.start or cc.i <= root.i:
         return
     # clause 1 must be exactly the tokens before the coordinator (no dependents of the root after it)
@@ -567,9 +567,9 @@ def _stative(head: "Token") -> bool:
 def _glued(tok: "Token") -> bool:
     """Part of a larger written word ("tent's", "fold-out"): moving it would split the word."""
     doc = tok.doc
-    if not tok.whitespace_ and tok.i + 1 < len(doc) and doc[tok.i + 1].text[:1] not in PUNCT_CLOSE:
+    if not tok.whitespace_ and tok.i + 1 < len(doc) and tokens(doc)[tok.i + 1].text[:1] not in PUNCT_CLOSE:
         return True
-    return tok.i > 0 and not doc[tok.i - 1].whitespace_ and doc[tok.i - 1].text not in ("(", "[", '"', "“")
+    return tok.i > 0 and not tokens(doc)[tok.i - 1].whitespace_ and tokens(doc)[tok.i - 1].text not in ("(", "[", '"', "“")
 
 
 def _shuffle(doc: "Doc", ctx: Context) -> Candidate | None:
