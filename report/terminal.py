@@ -158,7 +158,12 @@ def describe_interval(summary: Summary) -> str:
 
 
 def total_pairs(summary: Summary) -> int:
-    return sum(g.pairs for g in summary.families.values())
+    """Every scored pair, diagnostic rules included (a family's own count leaves them out)."""
+    total = 0
+    for g in summary.families.values():
+        diagnostic = sum(r.pairs for r in g.rules.values() if r.should == "none")
+        total += g.pairs + (diagnostic if g.should != "none" else 0)
+    return total
 
 
 def header_facts(summary: Summary) -> list[tuple[str, str]]:
