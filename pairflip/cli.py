@@ -157,6 +157,7 @@ def build(
     lexicon: List[Path] = typer.Option([], "--lexicon", help="Extra opinion words (TSV: word, pos, polarity, grade). Repeatable."),
     max_per_rule: int = typer.Option(1, "--max-per-rule", help="Variants kept per rule and source text."),
     recheck: bool = typer.Option(False, "--recheck", help="Parse every variant again to check it (slower)."),
+    overlap: bool = typer.Option(True, "--overlap/--no-overlap", help="On big inputs, run the rules in a second process while parsing (same suite, less time)."),
     force: bool = typer.Option(False, "--force", help="Overwrite the output file if it exists."),
 ) -> None:
     """Make a suite of minimal pairs from your own texts."""
@@ -165,6 +166,7 @@ def build(
             corpus, output, families=families, text_column=text_column, label_column=label_column,
             text_field=text_field, label_field=label_field, encoding=encoding, seed=seed, workers=workers,
             spacy_model=spacy_model, lexicon=lexicon, max_per_rule=max_per_rule, recheck=recheck, force=force,
+            overlap=overlap,
         )
         from pairflip.report.build_summary import render_build_stats
 
@@ -206,7 +208,7 @@ def build_to_file(corpus: Path, output: Path, *, families: Any, force: bool, **k
         pairs = iter_pairs(
             all_texts(), families=families, seed=kw["seed"], nlp=nlp, lexicon=lex, workers=kw["workers"],
             max_per_rule=kw["max_per_rule"], recheck=kw["recheck"], stats=stats,
-            on_source=(lambda n: bar.update(n, total)) if bar else None,
+            on_source=(lambda n: bar.update(n, total)) if bar else None, overlap=kw.get("overlap", True),
         )
         write_suite_stream(header, pairs, fh)
     return stats

@@ -112,12 +112,15 @@ def iter_pairs(
     recheck: bool = False,
     stats: BuildStats | None = None,
     on_source: Callable[[int], None] | None = None,
+    overlap: bool = True,
 ) -> Iterator[Pair]:
     """Yield pairs lazily from ``texts`` (strings, ``(text, label)`` tuples or SourceText).
 
     Each source is parsed once. For each selected rule, at most ``max_per_rule`` valid variants
     are kept per source, chosen with a random source seeded by ``seed`` and the source text, so the
-    output is the same for the same inputs and seed whatever ``workers`` is.
+    output is the same for the same inputs and seed whatever ``workers`` is. With ``overlap``
+    (and one parser process, two or more cores, no ``recheck``) the rules run in a second process
+    while this one parses (:mod:`pairflip.perturb.overlap`); the output is the same.
     """
     selected = resolve_rules(families)
     modules = _family_modules()
@@ -139,21 +142,48 @@ def iter_pairs(
     pipe_kwargs: dict[str, Any] = {"batch_size": batch_size, "as_tuples": True}
     if workers and workers > 1:
         pipe_kwargs["n_process"] = workers
+    recheck_nlp = nlp if recheck else None
+
+    def run_doc(doc: Any, st: SourceText, into: BuildStats) -> list[Pair]:
+        out: list[Pair] = []
+        for fam, rules in selected.items():
+            out.extend(_pairs_for_doc(doc, st, modules[fam], rules, seed, lexicon, max_per_rule, into, recheck_nlp))
+        if out:
+            into.sources_with_pairs += 1
+        return out
+
+    from pairflip.perturb import overlap as _overlap
+
+    use_overlap = overlap and not recheck and not (workers and workers > 1) and _overlap.available()
+    docs = iter(nlp.pipe(admitted(), **pipe_kwargs))
     n_done = 0
-    for doc, st in nlp.pipe(admitted(), **pipe_kwargs):
+    for doc, st in docs:
         n_done += 1
         # spaCy keeps the text verbatim, so doc.text == st.text; give the rules the string we
         # already hold rather than have spaCy rebuild it from every token
         doc.user_data["pairflip.text"] = st.text
-        made_here = 0
-        for fam, rules in selected.items():
-            for pair in _pairs_for_doc(doc, st, modules[fam], rules, seed, lexicon, max_per_rule, stats, nlp if recheck else None):
-                made_here += 1
-                yield pair
-        if made_here:
-            stats.sources_with_pairs += 1
+        yield from run_doc(doc, st, stats)
         if on_source is not None:
             on_source(n_done)
+        if use_overlap and n_done >= OVERLAP_AFTER:
+            break  # a big input: the rest goes through the overlapped path
+    else:
+        return
+
+    def merge(w: BuildStats) -> None:
+        stats.made.update(w.made)
+        for rule, reasons in w.dropped.items():
+            stats.dropped[rule].update(reasons)
+        stats.sources_with_pairs += w.sources_with_pairs
+
+    progress = (lambda k: on_source(n_done + k)) if on_source is not None else None
+    for pairs in _overlap.overlapped(docs, run_doc, nlp.vocab, BuildStats, merge, progress):
+        yield from pairs
+
+
+# Inputs up to this many texts are built in one process; past it the rules move to a second
+# process (starting one costs more than it saves on a small input).
+OVERLAP_AFTER = 512
 
 
 def _pairs_for_doc(
@@ -236,6 +266,7 @@ def build_suite(
     max_per_rule: int = 1,
     recheck: bool = False,
     on_source: Callable[[int], None] | None = None,
+    overlap: bool = True,
 ) -> Suite:
     """Build a suite in memory: ``pairflip.build_suite(texts, families=["negation"], seed=0)``."""
     if nlp is None:
@@ -246,7 +277,7 @@ def build_suite(
     pairs = list(
         iter_pairs(
             texts, families=families, seed=seed, nlp=nlp, lexicon=lexicon, workers=workers,
-            max_per_rule=max_per_rule, recheck=recheck, stats=stats, on_source=on_source,
+            max_per_rule=max_per_rule, recheck=recheck, stats=stats, on_source=on_source, overlap=overlap,
         )
     )
     header = suite_header(families, seed, nlp, lexicon, max_per_rule, recheck)

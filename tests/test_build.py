@@ -56,3 +56,24 @@ def test_sharding_by_source_gives_the_same_pairs(nlp):
     shards = [p.id for part in (texts[:50], texts[50:]) for p in pairflip.build_suite(part, seed=3, nlp=nlp)]
     assert len(whole) > 100
     assert shards == whole
+
+
+def test_overlapped_build_equals_one_process_build(nlp):
+    # Past OVERLAP_AFTER texts the rules run in a forked second process while this one parses;
+    # the suite and the per-rule counts must be exactly those of a one-process build.
+    import pairflip
+    from pairflip.demo.models import load_reviews
+    from pairflip.perturb import build as build_mod, overlap
+
+    if not overlap.available():
+        import pytest
+
+        pytest.skip("needs two cores and the fork start method")
+    texts = load_sentences() + load_reviews()[0]
+    assert len(texts) > build_mod.OVERLAP_AFTER + overlap.CHUNK * 4
+    seen = []
+    one = pairflip.build_suite(texts, seed=0, nlp=nlp, overlap=False)
+    two = pairflip.build_suite(texts, seed=0, nlp=nlp, overlap=True, on_source=seen.append)
+    assert [p.to_dict() for p in two] == [p.to_dict() for p in one]
+    assert two.stats.to_dict() == one.stats.to_dict()
+    assert seen == list(range(1, len(texts) + 1))  # progress counts every source, in order
