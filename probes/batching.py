@@ -65,6 +65,11 @@ def _float(x: Any, what: str) -> float:
     return f
 
 
+class CheckedPredictions(list):
+    """Predictions already checked in one go (a well-formed probability matrix): the per-item
+    checks of :func:`check_outputs` need not run again."""
+
+
 def build_predictions(
     n: int,
     *,
@@ -100,9 +105,9 @@ def build_predictions(
     if fast is not None and scores is None:
         rows, best = fast
         if labels is None:
-            return [Prediction(label=cls[b], probabilities=dict(zip(cls, row))) for row, b in zip(rows, best)]
-        return [Prediction(label=as_label(lab, i), probabilities=dict(zip(cls, row)))
-                for i, (lab, row) in enumerate(zip(cols["labels"], rows))]
+            return CheckedPredictions(Prediction(label=cls[b], probabilities=dict(zip(cls, row))) for row, b in zip(rows, best))
+        return CheckedPredictions(Prediction(label=as_label(lab, i), probabilities=dict(zip(cls, row)))
+                                  for i, (lab, row) in enumerate(zip(cols["labels"], rows)))
     out = []
     for i in range(n):
         probs = None
@@ -181,6 +186,10 @@ def prediction_from_item(x: Any, i: int) -> Prediction:
 
 def check_outputs(batch: Sequence[str], out: Any) -> list[Prediction]:
     """Raise :class:`ModelError` unless ``out`` is one well-formed Prediction per text."""
+    if type(out) is CheckedPredictions:
+        if len(out) != len(batch):
+            raise ModelError(f"{len(batch)} texts got {len(out)} outputs; expected one output per text")
+        return out
     if isinstance(out, (str, bytes, Mapping)) or not hasattr(out, "__len__"):
         raise ModelError(f"the model returned {type(out).__name__}, expected a list with one output per text")
     out = list(out)

@@ -12,7 +12,7 @@ import math
 import sqlite3
 from typing import Any, Callable, Iterable, Sequence
 
-from pairflip.labels import LabelMap
+from pairflip.labels import PROBABILITY_TOLERANCE, LabelMap
 from pairflip.probes.expectations import judge
 from pairflip.records import SHOULDS, Pair, PairflipError, Prediction, Results, Suite, Verdict, suite_sha256
 
@@ -88,11 +88,30 @@ def label_map(labels: LabelMap | Sequence[str] | str | None, model: Any, preds: 
 
 def polarity_score(pred: Prediction, lm: LabelMap, where: str = "") -> float | None:
     """The model's own scalar score when it gives one, else the expected polarity under its
-    probabilities, else None (label-only model)."""
-    if pred.score is not None:
-        return lm.check_score(pred.score, where=where)
-    if pred.probabilities:
-        return lm.score_from_probabilities(pred.probabilities, where=where)
+    probabilities, else None (label-only model).
+
+    Predictions reach here checked (batching.check_outputs); the fast paths below only skip
+    re-checking well-formed values, anything else goes through the LabelMap's own checks.
+    """
+    sc = pred.score
+    if sc is not None:
+        if type(sc) is float and -1.0 <= sc <= 1.0:  # NaN fails the comparison and is checked below
+            return sc
+        return lm.check_score(sc, where=where)
+    probs = pred.probabilities
+    if probs:
+        pol = lm.polarity
+        try:
+            total = 0.0
+            acc = 0.0
+            for k, v in probs.items():
+                total += v
+                acc += v * pol[k]
+        except (KeyError, TypeError):
+            return lm.score_from_probabilities(probs, where=where)
+        if total > 0 and abs(total - 1.0) <= PROBABILITY_TOLERANCE:
+            return max(-1.0, min(1.0, acc / total))
+        return lm.score_from_probabilities(probs, where=where)
     return None
 
 
