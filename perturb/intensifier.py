@@ -108,6 +108,8 @@ FORMULA_NOUNS = frozenset(
     "easter halloween weekend year day week job deal riddance grief lord god heavens times time one "
     "thing lot chance".split()
 )
+# Expletive degree words ("so bloody lazy"): already a degree, so no second one is added.
+SWEAR_DEGREE = frozenset({"bloody", "damn", "damned", "freaking", "fricking", "frigging", "fucking", "effing", "super"})
 # Adjectives that are mostly formulas or comparisons in reviews and tweets.
 FIXED_WORDS = frozenset({"welcome", "superior", "inferior", "preferable", "sorry", "thankful", "grateful"})
 # Adjectives that state willingness before an infinitive ("happy to help", "free to ask").
@@ -460,9 +462,15 @@ def _edits_for(doc: "Doc", tok: "Token", entry: "OpinionWord", role: str, degree
             return  # stacked modifiers: "a big roomy tent"
         if prev is not None and prev.lower_ == "such":
             return
+        if prev is not None and (prev.pos_ == "ADV" or prev.dep_ == "advmod" or prev.lower_ in SWEAR_DEGREE):
+            return  # another degree-like word already there: "so bloody lazy" (blind review, round 2)
+        if nxt is not None and (nxt.like_num or nxt.text[:1].isdigit() or nxt.pos_ == "PROPN"):
+            return  # a formula or a name follows: "Happy 4th of July", "Happy New Year"
         amp = EXTREME_AMPLIFIER[entry.polarity] if extreme else AMPLIFIER
         yield _candidate(doc, tok, tok.i, [amp], "intensifier/amplify", dict(base_meta, op="insert", word=amp))
-        if not extreme:
+        if not extreme and not (role == "attributive" and (prev is None or prev.lower_ not in ARTICLES)):
+            # an attributive softener reads only after "a"/"an": "a fairly fun trip", not
+            # "the fairly fun part" (blind review, round 2)
             soft = _softener(entry, role)
             yield _candidate(doc, tok, tok.i, soft.split(), "intensifier/soften", dict(base_meta, op="insert", word=soft))
         return

@@ -86,6 +86,9 @@ _CAUSAL = {"because", "since", "as", "so", "cause", "'cause"}
 # Positive-polarity items: inserting a negation would need "some" -> "any" etc.; skip.
 PPI = {"some", "something", "someone", "somebody", "somewhere", "already", "somewhat", "pretty",
        "fairly", "rather", "kinda", "slightly", "bit", "even", "both", "quite",
+       # "hasn't destroyed several" / "doesn't look nice also": a negation wants "any" / "either"
+       # (blind review, round 2)
+       "several", "also", "twice",
        # extreme amplifiers: "is absolutely not stunning" / "isn't absolutely stunning" both misread
        "absolutely", "truly", "utterly"}
 # Quantifiers and frequency words: a negation would bind them ("doesn't always work" is not

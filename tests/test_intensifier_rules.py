@@ -59,6 +59,13 @@ CASES = [
     ("The zippers feel flimsy.", SOFT, {"The zippers feel a bit flimsy."}),  # unfavourable, predicative
     ("An ugly color.", SOFT, {"A slightly ugly color."}),  # unfavourable, attributive: never "a bit"
     ("The boots are stiff.", SOFT, {"The boots are a bit stiff."}),
+    # round-2 blind review: no second degree word, no formulas, attributive softeners after a/an only
+    ("The clerk was so bloody lazy.", AMP, set()),
+    ("Happy 4th of July to the whole crew.", AMP, set()),
+    ("Happy 4th of July to the whole crew.", SOFT, set()),
+    ("The fun part was the campfire.", SOFT, set()),
+    ("It was a comfortable trip.", SOFT, {"It was a fairly comfortable trip."}),
+    ("The comfortable part was the seat.", SOFT, set()),
     # manner adverbs
     ("It lights reliably.", AMP, {"It lights very reliably."}),
     ("It lights reliably.", SOFT, {"It lights fairly reliably."}),
