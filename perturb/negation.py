@@ -694,6 +694,8 @@ def removal(cl: Clause) -> list[TokenEdit] | str:
     """Remove the clause's one negation: edits, or the reason it cannot be done."""
     head, subj = cl.head, cl.subj
     doc = head.doc
+    if lemma(head).lower() in NEGATIVE_IDIOM_VERBS:
+        return f"idiom 'can't {head.text}'"  # "can't complain" is praise; "can complain" is no English
     if subj is None and not dropped_subject(cl):
         return "no subject (imperative or fragment)"
     if cl.other_negs:
@@ -978,7 +980,15 @@ def _emphasised(tok: "Token", lexicon: "Lexicon", inserting: bool = True) -> str
     return None
 
 
-_HEDGES = frozenset({"almost", "nearly", "mostly", "pretty", "fairly", "kinda", "sorta", "partly", "largely"})
+_HEDGES = frozenset({"almost", "nearly", "mostly", "pretty", "fairly", "kinda", "sorta", "partly", "largely",
+                     # frequency words: "didn't fail repeatedly" denies the frequency, not the failing
+                     # (blind review, round 3)
+                     "repeatedly", "constantly", "frequently", "often", "regularly", "continually",
+                     "usually", "always", "sometimes", "occasionally", "rarely", "seldom"})
+# Verbs whose negation reads as neutral rather than the opposite ("I don't hate it").
+STRONG_VERBS = frozenset({"hate", "despise", "loathe", "detest", "adore"})
+# Verbs that live in a negated idiom: "can't complain" (= it is good).
+NEGATIVE_IDIOM_VERBS = frozenset({"complain"})
 _SAY_VERBS = frozenset({"think", "believe", "guess", "feel", "say", "find", "know"})
 
 
@@ -1193,6 +1203,8 @@ def plan(doc: "Doc", ctx: Context) -> "Candidate | str":
         why = clause_doubt(cl, ctx.lexicon)
         if why is not None:
             return why
+        if not cl.negated and any(t.pos_ == "VERB" and lemma(t).lower() in STRONG_VERBS for t in predicate_opinion(cl)):
+            return "strong verb"  # "don't hate" reads as neutral, not the opposite (blind review, round 3)
         if len({opinion_of(t, ctx.lexicon).polarity for t in predicate_opinion(cl)}) > 1:
             return "mixed polarity in one predicate"  # "heavy but durable": a negation would not reverse the clause
         own_ids = {t.i for t in cl.own}

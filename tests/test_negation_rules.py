@@ -98,6 +98,9 @@ CASES = [
     # round-2 blind review: items that need "any"/"either" after a new negation are skipped
     ("The lid has scratched several of my pots.", "negation/modal", None),
     ("The jacket looks nice also.", "negation/do-support", None),
+    # round-3 blind review: frequency scope and the "can't complain" idiom are skipped
+    ("The stove failed repeatedly.", "negation/do-support", None),
+    ("I can't complain about the tent.", "negation/removal", None),
     ("The poles could fail in the wind.", "negation/modal", "The poles couldn't fail in the wind."),
     ("It might break in the cold.", NO, NO),  # 'might not' keeps the possibility
     ("The case must protect the lens well.", NO, NO),  # 'mustn't' forbids
@@ -121,7 +124,8 @@ CASES = [
     ("The seat sags after a few hours.", "negation/do-support", "The seat doesn't sag after a few hours."),
     ("The jacket kept me dry.", NO, NO),  # "dry" is no opinion word
     ("The batteries died overnight.", "negation/do-support", "The batteries didn't die overnight."),
-    ("I hate the zipper.", "negation/do-support", "I don't hate the zipper."),
+    ("I hate the zipper.", "negation/do-support", None),  # "don't hate" reads as neutral, not the opposite
+    ("I love the zipper.", "negation/do-support", "I don't love the zipper."),
     ("I LOVE THIS TENT.", NO, NO),  # emphatic capitals: 'DON'T LOVE' reads as 'not thrilled'
     ("This griddle makes the best pancakes.", NO, NO),  # superlative
     ("I do like the color.", "negation/do-support", "I don't like the color."),
@@ -236,9 +240,8 @@ CASES = [
     ("1) the lid leaks and the pot is heavy.", NO, NO),  # numbered list
     ("The stove is reliable #camping", NO, NO),  # hashtag
     ("The stove is reliable and the lid was good too.", NO, NO),  # additive "too"
-    ("I hate Joomla I hate Joomla I hate Joomla I hate Joomla", NO, NO),  # run-on parsed as one clause: one negation would not reach it all
-    ("I hate this lid I hate this lid I hate this lid", "negation/do-support",
-     "I don't hate this lid I don't hate this lid I don't hate this lid"),  # parsed as three clauses: all toggled
+    ("I hate the tarp I hate the tarp I hate the tarp I hate the tarp", NO, NO),  # strong verb, and a run-on
+    ("I like this lid I like this lid I like this lid", NO, NO),  # an unpunctuated run-on: skipped
     ("this product sucks, the customer service from apex sucks.", NO, NO),  # comma splice misparsed
     ("He loved the stove so much I gave it to him.", NO, NO),  # result clause "so much (that)"
     ("I love the reinforcement for my rude behavior.", NO, NO),  # an opinion word off the predicate
