@@ -19,7 +19,7 @@ import json
 import random
 from pathlib import Path
 
-from _corpus import real_texts
+from _corpus import real_snippets
 
 PLAIN = {
     "flip": "The second text should express the OPPOSITE opinion to the first (positive <-> negative).",
@@ -39,7 +39,7 @@ def main() -> None:
 
     import pairflip
 
-    texts = real_texts(("product", "tweets"))
+    texts = real_snippets(("product", "tweets"))
     suite = pairflip.build_suite(texts, seed=0)
     pool = [p for p in suite if p.should in PLAIN]
     rng = random.Random(args.seed)

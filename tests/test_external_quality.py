@@ -2,7 +2,7 @@
 
 Data: the human-rated product-review and tweet snippets in the vaderSentiment 3.3.2 source
 distribution on PyPI (Hutto & Gilbert 2014, ICWSM; ratings are means of human judgements on
--4..+4). The movie-review file in the same archive is never used. These tests download the sdist
+-4..+4). These tests download the sdist
 with pip, so they run only when ``PAIRFLIP_EXTERNAL_DATA`` is set (``.ci/run`` sets it).
 
 The broken-form checks below are written independently of the rules' own validator: they read the

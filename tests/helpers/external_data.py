@@ -2,9 +2,9 @@
 
 The vaderSentiment 3.3.2 source distribution on PyPI (Hutto & Gilbert 2014, "VADER: A
 Parsimonious Rule-based Model for Sentiment Analysis of Social Media Text", ICWSM) carries, in
-``additional_resources/hutto_ICWSM_2014.tar.gz``, snippets rated by humans on a -4..+4 scale:
-product-review snippets, tweets, and newspaper-editorial snippets (plus movie-review snippets, which
-pairflip never uses). Each GroundTruth file is ``id <TAB> mean rating <TAB> text`` with CRLF ends.
+``additional_resources/hutto_ICWSM_2014.tar.gz``, snippets rated by humans on a -4..+4 scale;
+pairflip reads the product-review snippets and the tweets. Each GroundTruth file is
+``id <TAB> mean rating <TAB> text`` with CRLF ends.
 
 Fetched only when ``PAIRFLIP_EXTERNAL_DATA`` is set: ``pip download`` from the package registry into
 a cache folder (``PAIRFLIP_DATA_CACHE``, default ``~/.cache/pairflip-external``).
@@ -22,7 +22,6 @@ SDIST = "vaderSentiment==3.3.2"
 FILES = {
     "product": "amazonReviewSnippets_GroundTruth.txt",
     "tweets": "tweets_GroundTruth.txt",
-    "editorial": "nytEditorialSnippets_GroundTruth.txt",
 }
 
 
@@ -60,7 +59,7 @@ def fetch() -> Path:
 
 
 def load(kind: str) -> list[tuple[float, str]]:
-    """``[(mean human rating, text), ...]`` for ``product``, ``tweets`` or ``editorial``."""
+    """``[(mean human rating, text), ...]`` for ``product`` or ``tweets``."""
     path = fetch() / FILES[kind]
     rows = []
     for line in path.read_text(encoding="utf-8", errors="replace").splitlines():
