@@ -217,10 +217,6 @@ def build_to_file(corpus: Path, output: Path, *, families: Any, force: bool, **k
 # --------------------------------------------------------------------------- score
 
 
-def _model_options() -> dict[str, Any]:
-    return {}
-
-
 @app.command()
 def score(
     suite: Path = typer.Argument(..., help="A suite file made by `pairflip build`."),

@@ -296,10 +296,6 @@ def _article_as_a(ws: list[str]) -> list[str]:
     return ["a" if w == "an" else w for w in ws]
 
 
-def _neg_count(text: str) -> int:
-    return _count_negations(words(text))
-
-
 def _count_negations(ws: "list[str] | tuple[str, ...]") -> int:
     return sum(1 for w in ws if w in NEGATORS or w.replace("’", "'").endswith("n't"))
 

@@ -7,6 +7,8 @@ without colour too.
 
 from __future__ import annotations
 
+from typing import Callable
+
 import re
 from dataclasses import dataclass
 from difflib import SequenceMatcher
@@ -77,14 +79,14 @@ def join_chunks(chunks: list[Chunk], pieces: list[str]) -> str:
     return "".join(out)
 
 
+def render(chunks: list[Chunk], *, same: Callable[[str], str], removed: Callable[[str], str],
+           inserted: Callable[[str], str]) -> str:
+    """The diff with each chunk formatted by its kind (every renderer's markup goes through here)."""
+    fmt = {DEL: removed, INS: inserted}
+    return join_chunks(chunks, [fmt.get(c.kind, same)(c.text) for c in chunks])
+
+
 def plain(chunks: list[Chunk]) -> str:
     """``The tent [-kept-] [+did not keep+] us dry.``: the diff with text markers only."""
-    pieces = []
-    for c in chunks:
-        if c.kind == DEL:
-            pieces.append(f"{DEL_OPEN}{c.text}{DEL_CLOSE}")
-        elif c.kind == INS:
-            pieces.append(f"{INS_OPEN}{c.text}{INS_CLOSE}")
-        else:
-            pieces.append(c.text)
-    return join_chunks(chunks, pieces)
+    return render(chunks, same=str, removed=lambda t: f"{DEL_OPEN}{t}{DEL_CLOSE}",
+                  inserted=lambda t: f"{INS_OPEN}{t}{INS_CLOSE}")

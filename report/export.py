@@ -30,7 +30,8 @@ import re
 import xml.etree.ElementTree as ET
 from typing import Any, Sequence
 
-from pairflip.report.diff import DEL, DEL_CLOSE, DEL_OPEN, INS, INS_CLOSE, INS_OPEN, join_chunks, word_diff
+from pairflip.report.diff import DEL_CLOSE, DEL_OPEN, INS_CLOSE, INS_OPEN, word_diff
+from pairflip.report.diff import render as render_diff
 from pairflip.report.terminal import describe_interval, header_facts, pct, short_rule, total_pairs, when
 from pairflip.report.summary import SUMMARY_VERSION, Example, GroupStats, Summary
 
@@ -181,16 +182,8 @@ def md(text: Any) -> str:
 
 
 def _md_diff(source: str, variant: str) -> str:
-    chunks = word_diff(source, variant)
-    pieces = []
-    for c in chunks:
-        if c.kind == DEL:
-            pieces.append(f"~~{md(c.text)}~~")
-        elif c.kind == INS:
-            pieces.append(f"**{md(c.text)}**")
-        else:
-            pieces.append(md(c.text))
-    return join_chunks(chunks, pieces)
+    return render_diff(word_diff(source, variant), same=md, removed=lambda t: f"~~{md(t)}~~",
+                       inserted=lambda t: f"**{md(t)}**")
 
 
 def _md_gate(outs: list[Any] | None) -> str:
@@ -334,16 +327,11 @@ def _e(text: Any) -> str:
 
 
 def _html_diff(source: str, variant: str) -> str:
-    chunks = word_diff(source, variant)
-    pieces = []
-    for c in chunks:
-        if c.kind == DEL:
-            pieces.append(f'<del><span class="mk">{_e(DEL_OPEN)}</span>{_e(c.text)}<span class="mk">{_e(DEL_CLOSE)}</span></del>')
-        elif c.kind == INS:
-            pieces.append(f'<ins><span class="mk">{_e(INS_OPEN)}</span>{_e(c.text)}<span class="mk">{_e(INS_CLOSE)}</span></ins>')
-        else:
-            pieces.append(_e(c.text))
-    return join_chunks(chunks, pieces)
+    return render_diff(
+        word_diff(source, variant), same=_e,
+        removed=lambda t: f'<del><span class="mk">{_e(DEL_OPEN)}</span>{_e(t)}<span class="mk">{_e(DEL_CLOSE)}</span></del>',
+        inserted=lambda t: f'<ins><span class="mk">{_e(INS_OPEN)}</span>{_e(t)}<span class="mk">{_e(INS_CLOSE)}</span></ins>',
+    )
 
 
 def svg_chart(items: Sequence[Summary], families: Sequence[str]) -> str:

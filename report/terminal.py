@@ -723,17 +723,3 @@ def _print_parts(console: Console, parts: Sequence[RenderableType]) -> None:
         if i:
             console.print()
         console.print(p, highlight=False)
-
-
-def render_gate(outcome: Any, console: Console) -> None:
-    """The gate's own report lives in :mod:`pairflip.report.gate_view`; kept here for old imports."""
-    from pairflip.report.gate_view import render_gate as _render_gate
-
-    _render_gate(outcome, console)
-
-
-def render_comparison(comp: Any, console: Console, examples: int = 3) -> None:
-    """See :func:`pairflip.report.gate_view.render_comparison`; kept here for old imports."""
-    from pairflip.report.gate_view import render_comparison as _render_comparison
-
-    _render_comparison(comp, console, examples=examples)
