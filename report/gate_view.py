@@ -104,7 +104,8 @@ def gate_verdict(outcome: Any) -> Text:
     if outcome.failed_limits:
         parts.append(f"{len(outcome.failed_limits)} of {len(outcome.limits)} limits crossed")
     if outcome.regressed:
-        parts.append(f"{len(outcome.regressed)} families regressed: {', '.join(r.family for r in outcome.regressed)}")
+        n = len(outcome.regressed)
+        parts.append(f"{n} {'family' if n == 1 else 'families'} regressed: {', '.join(r.family for r in outcome.regressed)}")
     return Text("gate FAILED: " + "; ".join(parts), style="bold red")
 
 

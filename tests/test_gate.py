@@ -239,7 +239,7 @@ def test_baseline_regression_fails_the_gate():
     assert fc.p_value == pytest.approx(2 * 0.5**18)
     assert fc.p_holm == pytest.approx(2 * 2 * 0.5**18)
     text = gate_text(out)
-    assert "18 more violations" in text and "gate FAILED" in text and "1 families regressed: negation" in text
+    assert "18 more violations" in text and "gate FAILED" in text and "1 family regressed: negation" in text
 
 
 def test_baseline_small_change_is_not_a_regression():
