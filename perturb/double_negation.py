@@ -61,8 +61,8 @@ def candidates(doc: "Doc", ctx: Context) -> Iterator[Candidate]:
             for adj in cl.opinion:
                 if adj.dep_ not in ("acomp", "attr", "oprd") or adj.head.i != head.i or adj.pos_ != "ADJ" or adj.tag_ != "JJ":
                     continue
-                if any(c.dep_ in ("advmod", "conj", "cc", "npadvmod", "neg") for c in adj.children):
-                    continue
+                if any(c.dep_ in ("advmod", "conj", "cc", "npadvmod", "neg", "xcomp", "ccomp") for c in adj.children):
+                    continue  # also "pleased to say" -> "*not annoyed to say" (blind review, round 4)
                 if any(t.dep_ == "conj" and t.pos_ == "ADJ" for t in cl.own):
                     continue  # "easy to set up and easy to take down"
                 if [t.i for t in predicate_opinion(cl)] != [adj.i] or any(

@@ -69,6 +69,12 @@ RULES = {
 
 # The words the rules insert (all are listed in lexicons/intensifiers.tsv).
 AMPLIFIER = "very"
+AMPLIFIER_AFTER_DEFINITE = "really"
+DEFINITE = frozenset({"the", "this", "that", "these", "those"})
+# "especially", "particularly" are focusing adverbs (particularizers) before verbs and often before
+# adjectives: they pick out a case rather than raise a degree (Quirk et al. 1985 on focusing
+# subjuncts; from memory), so the rules neither remove nor swap them.
+FOCUS_PARTICLES = frozenset({"especially", "particularly"})
 EXTREME_AMPLIFIER = {1: "absolutely", -1: "utterly"}
 SOFTENER_FAVOURABLE = "fairly"
 SOFTENER_PREDICATIVE = "a bit"
@@ -448,6 +454,8 @@ def _edits_for(doc: "Doc", tok: "Token", entry: "OpinionWord", role: str, degree
     if k - 1 >= sent_of(tok).start and tokens(doc)[k].lower_ in ARTICLES and tokens(doc)[k - 1].lower_ in EXCLAMATIVE:
         return  # "What a great lantern!", "such a roomy tent", "quite a heavy pack"
     base_meta = {"target": tok.text, "polarity": entry.polarity, "grade": entry.grade, "role": role}
+    if mod is not None and " ".join(t.lower_ for t in doc[mod[0] : tok.i]) in FOCUS_PARTICLES:
+        return  # "I especially love X": a focus on X, not a degree; dropping it weakens nothing (round 4)
     if role == "verb":
         if mod is not None and mod[1] in ("amplifier", "extreme-amplifier"):
             yield _candidate(doc, tok, mod[0], [], "intensifier/remove", dict(base_meta, op="remove"))
@@ -464,9 +472,13 @@ def _edits_for(doc: "Doc", tok: "Token", entry: "OpinionWord", role: str, degree
             return
         if prev is not None and (prev.pos_ == "ADV" or prev.dep_ == "advmod" or prev.lower_ in SWEAR_DEGREE):
             return  # another degree-like word already there: "so bloody lazy" (blind review, round 2)
+        if prev is not None and prev.head.i == tok.i and prev.dep_ not in ("det", "poss", "punct", "neg"):
+            return  # any other word already grading it: "mega ill" -> "*mega very ill" (blind review, round 4)
         if nxt is not None and (nxt.like_num or nxt.text[:1].isdigit() or nxt.pos_ == "PROPN"):
             return  # a formula or a name follows: "Happy 4th of July", "Happy New Year"
         amp = EXTREME_AMPLIFIER[entry.polarity] if extreme else AMPLIFIER
+        if amp == AMPLIFIER and role == "attributive" and prev is not None and prev.lower_ in DEFINITE:
+            amp = AMPLIFIER_AFTER_DEFINITE  # "the very fun part" reads as "that exact part" (blind review, round 4)
         yield _candidate(doc, tok, tok.i, [amp], "intensifier/amplify", dict(base_meta, op="insert", word=amp))
         if not extreme and not (role == "attributive" and (prev is None or prev.lower_ not in ARTICLES)):
             # an attributive softener reads only after "a"/"an": "a fairly fun trip", not

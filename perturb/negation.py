@@ -508,7 +508,9 @@ def fragment(sent, lexicon: "Lexicon") -> Fragment | str:
         words = "not the"
     elif root.tag_ in ("NNS", "NNPS") or g.norm(root.text) in _MASS or lemma(root).lower() in _MASS or \
             g.norm(root.text).endswith(("ity", "ness", "ance", "ence", "ship", "ism", "ics", "ing")):
-        words = "not"
+        if opinion_of(op, lexicon) is not None and opinion_of(op, lexicon).polarity < 0:
+            return "negative bare noun phrase"  # "not poor customer service." is a hedge at best (blind review, round 4)
+        words = "not"  # "Not great value for the price."
     else:
         art = _article(first.text)
         if art is None:
@@ -758,6 +760,12 @@ def doubtful(an: Analysis) -> str | None:
         return "a predicate without an opinion word follows an opinion predicate"
     if any(t.dep_ == "dep" and not is_noise(t) and t.pos_ not in ("INTJ", "PUNCT", "X", "SYM") for cl in an.clauses for t in cl.own):
         return "the parser could not attach a word"
+    first = an.clauses[0].head if an.clauses else an.fragments[0].root
+    for t in tokens(first.doc):
+        if t.pos_ == "AUX" and t.dep_ not in ("aux", "auxpass") and any(
+            c.dep_ in ("mark", "advmod", "cc") and g.norm(c.text) in ("as", "so", "nor", "neither") and c.i < t.i for c in t.children
+        ) and not any(c.dep_ in ("acomp", "attr", "oprd", "xcomp", "ccomp", "dobj") for c in t.children):
+            return "an elliptical clause echoes another clause"  # "is a plus, as are the ringtones" (blind review, round 4)
     for cl in an.others:  # "... and the dog did too": an echo of the clause we would edit
         if g.base_form(cl.head) == "do" and not any(c.dep_ in ("dobj", "ccomp", "xcomp") for c in cl.head.children):
             return "an elliptical 'do' echoes another clause"
@@ -827,6 +835,13 @@ EXTREME_DEGREE = frozenset("such totally completely utterly truly absolutely ext
 # Extreme words whose negation is read as the opposite opinion, not a hedge: "it isn't great"
 # says the thing is poor (common practice in review text; from memory).
 NEGATABLE_EXTREME = frozenset({"great"})
+# "not so bad", "not too noisy", "not that annoyed" weaken a negative word instead of reversing it
+# (litotes; Quirk et al. 1985 on understatement, from memory); "not so good" does read as negative
+WEAKENING_AFTER_NOT = frozenset({"so", "too", "that", "all", "overly"})
+# a time frame makes a negated event mean "not then" instead of the opposite verdict:
+# "didn't break two weeks after I gave it", "wasn't satisfied, until last night"
+TIME_FRAME_WORDS = frozenset({"until", "till", "til", "after", "before", "since", "once"})
+TIME_FRAME_PREPS = frozenset({"until", "till", "til", "since"})  # "after two days" is a duration: "didn't sag after a few hours" is fine
 # Modals whose negation is not the opposite: "may not" / "might not" keep the possibility,
 # "mustn't" forbids.
 NO_NEG_MODALS = frozenset({"may", "might", "must"})
@@ -977,6 +992,9 @@ def _emphasised(tok: "Token", lexicon: "Lexicon", inserting: bool = True) -> str
     for c in tok.children:
         if c.dep_ in ("advmod", "amod", "det", "predet") and g.norm(c.text) in EXTREME_DEGREE:
             return f"extreme amplifier {c.text!r}"
+        if inserting and entry is not None and entry.polarity < 0 and c.dep_ == "advmod" and c.i < tok.i \
+                and g.norm(c.text) in WEAKENING_AFTER_NOT:
+            return f"degree {c.text!r} under a negation"  # "Not so annoyed" is less annoyed (blind review, round 4)
     return None
 
 
@@ -1047,6 +1065,11 @@ def _insertion_guard(cl: Clause, main: list["Token"], lexicon: "Lexicon") -> str
     if any(g.norm(x.text) in ("about", "around", "roughly") and x.head.dep_ in ("pobj", "npadvmod", "prep") or
            g.norm(x.text) in ("about", "around") and x.dep_ in ("advmod", "quantmod") for x in cl.own):
         return "an approximate measure"  # "worked great for about a month"
+    frame_heads = {cl.head.i} | {t.i for t in predicate_opinion(cl)}
+    for x in (c for t in cl.own if t.i in frame_heads for c in t.children):
+        if (x.dep_ == "prep" and g.norm(x.text) in TIME_FRAME_PREPS) or (x.dep_ == "advcl" and any(
+                m.dep_ in ("mark", "advmod") and g.norm(m.text) in TIME_FRAME_WORDS for m in x.children)):
+            return f"time frame {x.text!r}"  # "didn't break just two weeks after ...": "not then" (blind review, round 4)
     if any(g.aux_word(a) == "would" for a in cl.auxes) and any(c.dep_ == "xcomp" for c in cl.head.children):
         return "a wish ('would love to')"  # "would hate to know": hypothetical, not an opinion
     for t in main:
@@ -1130,9 +1153,63 @@ def _frequency_after_aux(cl: Clause) -> "Token | None":
     return None
 
 
-def clause_doubt(cl: Clause, lexicon: "Lexicon") -> str | None:
+def _coordinated_predicate(cl: Clause) -> list["Token"]:
+    """The later conjuncts of a coordinated predicate ("is easy to use and intuitive" -> *intuitive*)."""
+    pred = {x.i for x in predicate_opinion(cl)}
+    return [t for t in cl.own if t.dep_ == "conj" and t.head.i != cl.head.i and t.pos_ in ("ADJ", "NOUN", "ADV", "VERB")
+            and (t.head.i in pred or t.head.dep_ in ("acomp", "xcomp", "attr", "oprd", "advmod"))]
+
+
+def or_for_and(cl: Clause, lexicon: "Lexicon") -> TokenEdit | None:
+    """The edit that makes a negated coordination cover every conjunct, or None when unsafe.
+
+    Under a negation English coordinates with "or": "isn't quick or easy" denies both, where
+    "isn't quick and easy" may deny only the pair (handbook fact: a negated clause takes "or",
+    "not A or B" = neither A nor B; Quirk et al. 1985, from memory). Only plain lists of adjectives
+    (or manner adverbs) of one polarity, joined by a single "and", directly on the predicate."""
+    conjs = _coordinated_predicate(cl)
+    if not conjs:
+        return None
+    first = conjs[0].head
+    if first.dep_ == "xcomp" and first.pos_ == "VERB":  # "easy to use and intuitive" (see below)
+        first = first.head
+    while first.dep_ == "conj" and first.head.i != cl.head.i:
+        first = first.head
+    if first.head.i != cl.head.i or first.dep_ not in ("acomp", "advmod"):
+        return None
+    conj_ids = {c.i for c in conjs}
+    chain = [first] + [t for t in first.subtree if t.dep_ == "conj" and t.i in conj_ids]
+    if len(chain) != len(conjs) + 1:
+        return None
+    # the parser often hangs "and intuitive" on the infinitive of "easy to use and intuitive"
+    bridges = [c.head for c in chain[1:] if c.head.dep_ == "xcomp" and c.head.head.i in {t.i for t in chain}]
+    if any(c.head.i not in {t.i for t in chain} | {b.i for b in bridges} for c in chain[1:]):
+        return None
+    pos = {t.pos_ for t in chain}
+    if len(pos) != 1 or pos - {"ADJ", "ADV"}:
+        return None
+    pols = set()
+    for t in chain:
+        entry = opinion_of(t, lexicon)
+        if entry is None or t.tag_ not in ("JJ", "RB"):
+            return None
+        pols.add(entry.polarity)
+        if any(c.dep_ not in ("advmod", "punct", "cc", "conj", "xcomp", "prep") for c in t.children):
+            return None
+    if len(pols) != 1:
+        return None
+    ccs = [c for t in chain + bridges for c in t.children if c.dep_ == "cc"]
+    if len(ccs) != 1 or g.norm(ccs[0].text) != "and" or ccs[0].i > chain[-1].i:
+        return None
+    if any(t.dep_ == "preconj" or g.norm(t.text) in ("both", "either", "neither") for t in cl.own):
+        return None
+    return TokenEdit(ccs[0].i, ccs[0].i + 1, "or")
+
+
+def clause_doubt(cl: Clause, lexicon: "Lexicon", coordination: bool = False) -> str | None:
     """Why toggling this opinion clause would not give a clear opposite (a hedge, a part flip, a
-    misplaced negation), or None. Shared by negation and double negation."""
+    misplaced negation), or None. Shared by negation and double negation. With ``coordination``
+    a coordinated predicate that :func:`or_for_and` can rewrite passes."""
     if is_noise(cl.head):
         return "a link or tag read as a verb"
     if not _main_like(cl.head):
@@ -1145,9 +1222,7 @@ def clause_doubt(cl: Clause, lexicon: "Lexicon") -> str | None:
             return f"noun {t.text!r} conjoined to the verb (parser slip)"  # "this sucks, the service from apex sucks"
     if any((t.like_num or t.pos_ == "NUM") and _measured(t) for t in cl.own):
         return "a measure in the clause"  # "didn't last just over one year": a factual measure
-    if any(t.dep_ == "conj" and t.head.i != cl.head.i and t.pos_ in ("ADJ", "NOUN", "ADV", "VERB")
-           and (t.head.i in {x.i for x in predicate_opinion(cl)} or t.head.dep_ in ("acomp", "xcomp", "attr", "oprd", "advmod"))
-           for t in cl.own):
+    if _coordinated_predicate(cl) and not (coordination and or_for_and(cl, lexicon) is not None):
         return "coordinated opinion predicate"  # "isn't very easy and very good": not (A and B) is unclear
     for x in cl.own:
         if g.norm(x.text) in _HEDGES and x.dep_ in ("advmod", "npadvmod"):
@@ -1200,7 +1275,7 @@ def plan(doc: "Doc", ctx: Context) -> "Candidate | str":
     for cl in clauses:
         if cl.nonfinite_opinion:
             return "opinion in a non-finite adverbial"
-        why = clause_doubt(cl, ctx.lexicon)
+        why = clause_doubt(cl, ctx.lexicon, coordination=not cl.negated)
         if why is not None:
             return why
         if not cl.negated and any(t.pos_ == "VERB" and lemma(t).lower() in STRONG_VERBS for t in predicate_opinion(cl)):
@@ -1238,6 +1313,11 @@ def plan(doc: "Doc", ctx: Context) -> "Candidate | str":
             rules.append(res2[0])
             edits.extend(res2[1])
             inserted += 1
+            if _coordinated_predicate(cl):
+                edit = or_for_and(cl, ctx.lexicon)
+                if edit is None:  # clause_doubt let it through only when the rewrite exists
+                    return "coordinated opinion predicate"
+                edits.append(edit)
     for fr in an.fragments:
         for t in sent_of(fr.root):
             if opinion_of(t, ctx.lexicon) is not None and _emphasised(t, ctx.lexicon) is not None:

@@ -66,6 +66,13 @@ CASES = [
     ("The fun part was the campfire.", SOFT, set()),
     ("It was a comfortable trip.", SOFT, {"It was a fairly comfortable trip."}),
     ("The comfortable part was the seat.", SOFT, set()),
+    # round-4 blind review: a word already graded, "the very X" (= that exact X), focus particles
+    ("He's mega tired after the hike.", AMP, set()),
+    ("I bought the comfortable boots.", AMP, {"I bought the really comfortable boots."}),
+    ("It was a comfortable trip.", AMP, {"It was a very comfortable trip."}),
+    ("I especially love the side pockets.", REM, set()),
+    ("The strap is especially comfortable.", REM, set()),
+    ("The strap is really comfortable.", REM, {"The strap is comfortable."}),
     # manner adverbs
     ("It lights reliably.", AMP, {"It lights very reliably."}),
     ("It lights reliably.", SOFT, {"It lights fairly reliably."}),
@@ -191,6 +198,7 @@ def test_indefinite_article(word, article):
 def test_inserted_words_are_in_the_lexicon(lex):
     kinds = lex.intensifiers
     assert kinds[intensifier.AMPLIFIER] == "amplifier"
+    assert kinds[intensifier.AMPLIFIER_AFTER_DEFINITE] == "amplifier"
     assert {kinds[w] for w in intensifier.EXTREME_AMPLIFIER.values()} == {"extreme-amplifier"}
     for w in (intensifier.SOFTENER_FAVOURABLE, intensifier.SOFTENER_PREDICATIVE,
               intensifier.SOFTENER_ATTRIBUTIVE, intensifier.SOFTENER_ADVERB):

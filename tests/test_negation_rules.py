@@ -111,6 +111,8 @@ CASES = [
     ("They love the stove.", "negation/do-support", "They don't love the stove."),
     ("We loved it.", "negation/do-support", "We didn't love it."),
     ("The zipper broke after two days.", "negation/do-support", "The zipper didn't break after two days."),
+    ("It broke two weeks after I bought it.", "negation/do-support", None),  # a time frame: "didn't break two weeks after" = "not then"
+    ("I was satisfied with it until last night.", "negation/copula", None),  # "wasn't satisfied ... until last night" is no opposite
     ("They broke the first week.", "negation/do-support", "They didn't break the first week."),
     ("The fly tore on the second night.", "negation/do-support", "The fly didn't tear on the second night."),
     ("The hip belt fit snugly.", "negation/do-support", "The hip belt didn't fit snugly."),
@@ -170,11 +172,11 @@ CASES = [
     ("Great tent.", "negation/fragment", "Not a great tent."),
     ("great player.", "negation/fragment", "not a great player."),
     ("Excellent stove!", NO, NO),  # extreme word
-    ("Poor quality.", "negation/fragment", "Not poor quality."),
+    ("Poor quality.", "negation/fragment", None),  # "not poor quality" is a hedge, not praise
     ("Great value for the price.", "negation/fragment", "Not great value for the price."),
     ("Best tent out there.", NO, NO),  # superlative
     ("A great buy.", "negation/fragment", "Not a great buy."),
-    ("Flimsy poles.", "negation/fragment", "Not flimsy poles."),
+    ("Flimsy poles.", "negation/fragment", None),
     ("Very comfortable.", "negation/fragment", "Not very comfortable."),
     ("especially useful in the rain", "negation/fragment", "not especially useful in the rain"),
     ("So far so good.", "negation/fragment", "So far not so good."),
@@ -259,7 +261,12 @@ CASES = [
     ("I just heard a cool new word.", NO, NO),  # opinion on the object of a report verb
     ("So far I am more than pleased.", NO, NO),  # "not more than pleased" is no opposite
     ("Sweet dreams...", NO, NO),  # a wish
-    ("Poor reliability.", "negation/fragment", "Not poor reliability."),  # a mass noun takes no article
+    ("Poor reliability.", "negation/fragment", None),  # negative bare noun phrase: a hedge at best
+    ("So annoyed.", "negation/fragment", None),  # "not so annoyed" is less annoyed, not pleased
+    ("The pad is easy to inflate and comfortable.", "negation/copula", "The pad isn't easy to inflate or comfortable."),
+    ("The lamp was bright and reliable.", "negation/copula", "The lamp wasn't bright or reliable."),
+    ("The fly is light and flimsy.", "negation/copula", None),  # mixed polarity: no clear opposite
+    ("The screen is a plus, as are the pegs.", "negation/copula", None),  # an elliptical echo
     ("The stove is great.", "negation/copula", "The stove isn't great."),  # "great": read as the opposite when negated
     ("The tent is good. The stove is nice.", "negation/copula", "The tent isn't good. The stove isn't nice."),
 ]
