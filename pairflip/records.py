@@ -150,7 +150,7 @@ def text_digest(text: str) -> bytes:
     return hashlib.blake2b(text.encode("utf-8"), digest_size=12).digest()
 
 
-@dataclass(frozen=True)
+@dataclass(slots=True)  # not frozen: a frozen init costs twice as much, and suites hold millions
 class Prediction:
     """A model's output on one text.
 
@@ -164,7 +164,7 @@ class Prediction:
     probabilities: dict[str, float] | None = None
 
 
-@dataclass
+@dataclass(slots=True)
 class Verdict:
     """One scored pair: both predictions and whether the expectation was kept."""
 

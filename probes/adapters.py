@@ -29,7 +29,7 @@ import pickle
 import sys
 from typing import Any
 
-from pairflip.probes.batching import ModelError, build_predictions, prediction_from_item
+from pairflip.probes.batching import ModelError, build_predictions, paused_gc, prediction_from_item
 from pairflip.records import PairflipError, Prediction
 
 SPEC_FORMS = "path/model.joblib, package.module:name, http://host:port/path or cmd:COMMAND"
@@ -129,7 +129,8 @@ class PythonModel(Model):
         raw = list(raw)
         if len(raw) != len(texts):
             raise ModelError(f"{len(texts)} texts got {len(raw)} outputs; expected one output per text")
-        return [prediction_from_item(x, i) for i, x in enumerate(raw)]
+        with paused_gc():
+            return [prediction_from_item(x, i) for i, x in enumerate(raw)]
 
     def fingerprint(self) -> str:
         if self._fp is None:

@@ -10,7 +10,9 @@ prediction cache before the next is yielded, so a failure later on loses nothing
 
 from __future__ import annotations
 
+import gc
 import math
+from contextlib import contextmanager
 from concurrent.futures import FIRST_COMPLETED, Future, ThreadPoolExecutor, wait
 from collections.abc import Mapping
 from typing import Any, Iterator, Sequence
@@ -65,12 +67,34 @@ def _float(x: Any, what: str) -> float:
     return f
 
 
+@contextmanager
+def paused_gc() -> Iterator[None]:
+    """Pause Python's cycle collector while building many small acyclic records (predictions,
+    verdicts): each collection walks every live object, the whole suite included, and cost more
+    than the records themselves. Reference counting still frees everything; only cycles wait,
+    and the collector resumes (if it was on) when the block ends. Common practice for
+    allocation-heavy batch loops in CPython."""
+    was = gc.isenabled()
+    gc.disable()
+    try:
+        yield
+    finally:
+        if was:
+            gc.enable()
+
+
 class CheckedPredictions(list):
     """Predictions already checked in one go (a well-formed probability matrix): the per-item
     checks of :func:`check_outputs` need not run again."""
 
 
-def build_predictions(
+def build_predictions(n: int, **columns: Any) -> list[Prediction]:
+    """Predictions from column-wise outputs; see :func:`_build_predictions`."""
+    with paused_gc():
+        return _build_predictions(n, **columns)
+
+
+def _build_predictions(
     n: int,
     *,
     labels: Sequence[Any] | None = None,
@@ -105,8 +129,8 @@ def build_predictions(
     if fast is not None and scores is None:
         rows, best = fast
         if labels is None:
-            return CheckedPredictions(Prediction(label=cls[b], probabilities=dict(zip(cls, row))) for row, b in zip(rows, best))
-        return CheckedPredictions(Prediction(label=as_label(lab, i), probabilities=dict(zip(cls, row)))
+            return CheckedPredictions([Prediction(cls[b], None, dict(zip(cls, row))) for row, b in zip(rows, best)])
+        return CheckedPredictions(Prediction(as_label(lab, i), None, dict(zip(cls, row)))
                                   for i, (lab, row) in enumerate(zip(cols["labels"], rows)))
     out = []
     for i in range(n):
@@ -151,13 +175,22 @@ def _fast_probabilities(col: Any, n: int, cls: list[str]) -> tuple[list[list[flo
     return arr.tolist(), arr.argmax(axis=1).tolist()
 
 
+_LABEL_SCORE = frozenset({"label", "score"})
+
+
 def prediction_from_item(x: Any, i: int) -> Prediction:
     """One output of a Python callable: a label, or a dict with ``label`` / ``probabilities``
     (label -> p) / ``score``, or a ready :class:`Prediction`."""
     if isinstance(x, Prediction):
         x = {"label": x.label, "score": x.score, "probabilities": x.probabilities}
     if type(x) is str:  # the common case: a plain label
-        return Prediction(label=as_label(x, i))
+        return Prediction(as_label(x, i))
+    if type(x) is dict and x.keys() <= _LABEL_SCORE:  # the other common case: {"label", "score"}
+        lab, sc = x.get("label"), x.get("score")
+        if type(lab) is str and lab and not lab[0].isspace() and not lab[-1].isspace() and (
+            sc is None or (type(sc) is float and -1.0 <= sc <= 1.0)  # NaN fails the comparison
+        ):
+            return Prediction(lab, sc)
     if type(x) is dict or isinstance(x, Mapping):
         unknown = set(x) - {"label", "probabilities", "score"}
         if unknown:
@@ -196,6 +229,10 @@ def check_outputs(batch: Sequence[str], out: Any) -> list[Prediction]:
     if len(out) != len(batch):
         raise ModelError(f"{len(batch)} texts got {len(out)} outputs; expected one output per text")
     for i, p in enumerate(out):
+        if type(p) is Prediction and p.probabilities is None and p.label and type(p.label) is str:
+            sc = p.score  # the common label (+ score) output, checked in two comparisons
+            if sc is None or (type(sc) is float and -1.0 <= sc <= 1.0):
+                continue
         if not isinstance(p, Prediction):
             raise ModelError(f"output {i} is {type(p).__name__}, expected a Prediction")  # adapter bug
         if not p.label:

@@ -13,6 +13,7 @@ import sqlite3
 from typing import Any, Callable, Iterable, Sequence
 
 from pairflip.labels import PROBABILITY_TOLERANCE, LabelMap
+from pairflip.probes.batching import paused_gc
 from pairflip.probes.expectations import judge
 from pairflip.records import SHOULDS, Pair, PairflipError, Prediction, Results, Suite, Verdict, suite_sha256
 
@@ -161,7 +162,14 @@ def score(
         if not isinstance(model, Model):  # made here from a SPEC or object: stop its processes
             m.close()
     lm = label_map(given, m, preds)
-    where = f"model {m.spec}: "
+    with paused_gc():
+        verdicts = _judge_all(pairs, texts, preds, lm, f"model {m.spec}: ", float(margin))
+    return _results(suite, suite_path, pairs, texts, m, lm, margin, verdicts)
+
+
+def _judge_all(pairs: list[Pair], texts: list[str], preds: dict[str, Prediction], lm: LabelMap,
+               where: str, margin_f: float) -> list[Verdict]:
+    """One verdict per pair, each distinct text's label and polarity score worked out once."""
     polar: dict[str, tuple[str, int, float, float | None]] = {}
     per_label: dict[str, tuple[str, int, float]] = {}  # raw label -> (canonical, polarity, strength)
     for t in texts:
@@ -175,28 +183,22 @@ def score(
         except PairflipError as err:
             raise PairflipError(f"{err} (text {t[:60]!r})") from None
         polar[t] = (known[0], known[1], known[2], sc)
-    verdicts = []
-    for pair in pairs:
+    verdicts: list[Verdict] = []
+    append = verdicts.append
+    for pair in pairs:  # positional Verdict fields: this loop runs once per pair
         sl, sp, sst, ss = polar[pair.source]
         vl, vp, vst, vs = polar[pair.variant]
-        verdicts.append(
-            Verdict(
-                id=pair.id,
-                source_pred=sl,
-                variant_pred=vl,
-                verdict=judge(pair.should, sp, vp, sl, vl, ss, vs, float(margin),
-                              source_strength=sst, variant_strength=vst),
-                source_score=ss,
-                variant_score=vs,
-                family=pair.family,
-                rule=pair.rule,
-                should=pair.should,
-                source=pair.source,
-                variant=pair.variant,
-                source_id=pair.source_id,
-                label=pair.label,
-            )
-        )
+        should = pair.should
+        append(Verdict(
+            pair.id, sl, vl,
+            judge(should, sp, vp, sl, vl, ss, vs, margin_f, source_strength=sst, variant_strength=vst),
+            ss, vs, pair.family, pair.rule, should, pair.source, pair.variant, pair.source_id, pair.label,
+        ))
+    return verdicts
+
+
+def _results(suite: Any, suite_path: str | None, pairs: list[Pair], texts: list[str], m: Any, lm: LabelMap,
+             margin: float, verdicts: list[Verdict]) -> Results:
     suite_info: dict[str, Any] = {"sha256": suite_sha256(pairs)}
     if isinstance(suite, Suite):
         suite_info["path"] = suite_path or suite.header.get("path")
