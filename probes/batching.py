@@ -15,7 +15,7 @@ import math
 from contextlib import contextmanager
 from concurrent.futures import FIRST_COMPLETED, Future, ThreadPoolExecutor, wait
 from collections.abc import Mapping
-from typing import Any, Iterator, Sequence
+from typing import Any, Callable, Iterator, Sequence
 
 from pairflip.labels import PROBABILITY_TOLERANCE, normalise_label
 from pairflip.records import PairflipError, Prediction
@@ -81,6 +81,22 @@ def paused_gc() -> Iterator[None]:
     finally:
         if was:
             gc.enable()
+
+
+@contextmanager
+def settled_records() -> Iterator[Callable[[], None]]:
+    """Yield ``settle()``: call it after each finished batch to move everything alive so far
+    (the suite, the predictions) out of the cycle collector's view, so the model's own
+    allocations in the next batch do not trigger collections that walk an ever larger heap
+    (measured: that made in-process scikit-learn calls about half again slower). Everything
+    returns to the collector when the block ends. Skipped when someone else already uses
+    ``gc.freeze`` (the unfreeze at the end would undo theirs)."""
+    own = gc.isenabled() and gc.get_freeze_count() == 0
+    try:
+        yield (gc.freeze if own else (lambda: None))
+    finally:
+        if own:
+            gc.unfreeze()
 
 
 class CheckedPredictions(list):

@@ -13,7 +13,7 @@ import sqlite3
 from typing import Any, Callable, Iterable, Sequence
 
 from pairflip.labels import PROBABILITY_TOLERANCE, LabelMap
-from pairflip.probes.batching import paused_gc
+from pairflip.probes.batching import paused_gc, settled_records
 from pairflip.probes.expectations import judge
 from pairflip.records import SHOULDS, Pair, PairflipError, Prediction, Results, Suite, Verdict, suite_sha256
 
@@ -41,8 +41,6 @@ def predict_all(
     The cache (see :mod:`pairflip.probes.cache`) is written batch by batch, so an interrupted
     or failed run keeps every finished batch. ``on_batch(done, total)`` reports progress in texts.
     """
-    from pairflip.probes.batching import run_batches
-
     if isinstance(batch_size, bool) or not isinstance(batch_size, int) or batch_size < 1:
         raise PairflipError(f"--batch-size must be a whole number >= 1, got {batch_size!r}")
     preds: dict[str, Prediction] = {}
@@ -55,6 +53,16 @@ def predict_all(
     if on_batch:
         on_batch(done, total)
     batches = [todo[i : i + batch_size] for i in range(0, len(todo), batch_size)]
+    with settled_records() as settle:
+        _predict_batches(model, batches, preds, cache, fp, concurrency, on_batch, done, total, settle)
+    return preds
+
+
+def _predict_batches(model: Any, batches: list[list[str]], preds: dict[str, Prediction], cache: Any, fp: str,
+                     concurrency: int, on_batch: Callable[[int, int], None] | None, done: int, total: int,
+                     settle: Callable[[], None]) -> None:
+    from pairflip.probes.batching import run_batches
+
     for _, batch, out in run_batches(model, batches, concurrency=concurrency):
         if cache is not None:
             try:
@@ -63,9 +71,9 @@ def predict_all(
                 raise PairflipError(f"--cache {getattr(cache, 'path', '')}: cannot write predictions ({err})") from None
         preds.update(zip(batch, out))
         done += len(batch)
+        settle()
         if on_batch:
             on_batch(done, total)
-    return preds
 
 
 def label_map(labels: LabelMap | Sequence[str] | str | None, model: Any, preds: dict[str, Prediction]) -> LabelMap:
