@@ -9,7 +9,8 @@ the demo's unigram logistic regression — the last two cost only a few microsec
 for them the report also gives pairflip's own cost per text in microseconds. "Direct" is the model's own
 ``predict_proba`` over the suite's distinct texts in batches of the same size; "pairflip" is
 ``pairflip.score`` on the same suite (collecting distinct texts, predicting, mapping labels,
-judging every pair). Each is timed three times, interleaved; the minimum counts.
+judging every pair). Each is timed REPEATS (7) times, interleaved; the minimum counts (the
+machines are noisy: with three runs the HTTP figure moved between +2 % and +13 % from run to run).
 
     python benchmarks/scoring.py [--n 4000] [--batch-size 64]
 """
@@ -22,6 +23,8 @@ import time
 from pathlib import Path
 
 from _corpus import real_texts
+
+REPEATS = 7
 
 
 class Counting:
@@ -131,7 +134,7 @@ def main() -> None:
     cases.append(("deep-bow over HTTP", _post(url), url))
     for name, direct_call, as_model in cases:
         direct_t, ours_t = [], []
-        for _ in range(3):
+        for _ in range(REPEATS):
             t0 = time.perf_counter()
             for i in range(0, len(distinct), bs):
                 direct_call(distinct[i : i + bs])
