@@ -94,6 +94,8 @@ def candidates(doc: "Doc", ctx: Context) -> Iterator[Candidate]:
             continue  # "I'd like ..." is a wish, not an opinion
         if any(c.dep_ in ("xcomp", "ccomp", "advmod", "prt", "npadvmod") for c in head.children):
             continue  # "like to camp", "always liked", "love it so much": keep it simple
+        if not any(c.dep_ == "dobj" for c in head.children) or any(g.norm(t.text) == "far" for t in head.subtree):
+            continue  # "Roof beer approved." (an adjective-like participle), "like it by far" (round 5)
         style = text_style or g.CONTRACTED
         res = insertion(cl, style, new_base=opp[0])
         if isinstance(res, str):

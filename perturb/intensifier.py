@@ -98,7 +98,10 @@ STANCE_VERBS = frozenset(
 IRREALIS_MARKS = frozenset({"if", "unless", "whether"})
 IRREALIS_VERBS = frozenset({"wish", "hope", "want", "expect", "need", "wonder", "plan", "seek"})
 IRREALIS_MODALS = frozenset({"would", "could", "should", "might", "may", "must", "'d", "ought"})
-CONTRAST = frozenset({"but", "although", "though", "however", "except", "yet", "whereas", "while", "otherwise"})
+CONTRAST = frozenset({"but", "although", "though", "however", "except", "yet", "whereas", "while", "otherwise",
+                      "exception", "until", "till", "vs", "versus"})  # round 5: "with the exception", "until last night"
+# "a great number", "a good deal": size, not an opinion (blind review, round 5)
+QUANTITY_NOUNS = frozenset({"number", "deal", "amount", "lot", "majority", "many", "few", "range", "variety", "quantity"})
 EXTRA_NEGATORS = frozenset({"without", "hardly", "barely", "scarcely", "lack", "lacks", "lacked"})
 # Nouns the tagger sometimes gives to predicative adjectives ("the tent is roomy/NN"): such a
 # token counts as an adjective only when it has one of these endings, so that "light" (a noun
@@ -147,7 +150,9 @@ def candidates(doc: "Doc", ctx: Context) -> Iterator[Candidate]:
         return
     for tok, (entry, role) in targets:
         sent = sent_of(tok)
-        if is_question(sent) or _negated(tok) or _irrealis(tok, role):
+        if is_question(sent) or _negated(tok) or _irrealis(tok, role) or _imperative(tok):
+            continue
+        if role == "attributive" and lemma(tok.head).lower() in QUANTITY_NOUNS:
             continue
         yield from _edits_for(doc, tok, entry, role, degree)
 
@@ -390,6 +395,20 @@ def _negated(tok: "Token") -> bool:
             return True
         if any(_is_negator(c) for c in node.children):
             return True
+        if node.head.i == node.i:
+            return False
+        node = node.head
+
+
+def _imperative(tok: "Token") -> bool:
+    """Inside a clause with a bare verb and no subject: a wish or an order ("have a good flight")."""
+    node = tok
+    while True:
+        subjects = [c for c in node.children if c.dep_ in ("nsubj", "nsubjpass", "expl", "aux")]
+        if node.pos_ in ("VERB", "AUX") and node.tag_ in ("VB", "VBP") and node.dep_ in ("ROOT", "conj") and (
+            all(c.text.startswith("@") for c in subjects) and (node.tag_ == "VB" or subjects)
+        ):
+            return True  # "@anon have a good flight": the parser takes the mention for a subject
         if node.head.i == node.i:
             return False
         node = node.head

@@ -1093,6 +1093,8 @@ def _insertion_guard(cl: Clause, main: list["Token"], lexicon: "Lexicon") -> str
             degree += [c for c in cl.head.children if c.dep_ == "advmod" and g.norm(c.text) in _DEGREE_HEDGE and c.i < cl.head.i]
         if entry is not None and entry.polarity < 0 and degree:
             return f"negative opinion with {degree[0].text!r}"  # "isn't very bad", "don't really hate": hedges
+        if len({c.i for c in degree}) > 1:
+            return f"stacked degree words {degree[0].text!r}"  # "doesn't sound very, very interesting" (round 5)
     if main and all(t.pos_ in ("NOUN", "PROPN") or (t.dep_ == "amod" and t.head.dep_ == "dobj") for t in main):
         verb = lemma(cl.head).lower()
         if verb not in _HAVE_BE and opinion_of(cl.head, lexicon) is None:

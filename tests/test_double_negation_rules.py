@@ -43,6 +43,8 @@ CASES = [
     # ---- antonym (both directions), copula and linking verbs, tenses, persons, styles
     ("The floor is clean.", "double-negation/antonym", "The floor isn't dirty."),
     ("I'm pleased to say it works.", "double-negation/antonym", None),  # "*not annoyed to say" (blind review, round 4)
+    ("I like it by far.", "double-negation/verb", None),  # "*don't dislike it by far" (round 5)
+    ("Tent approved.", "double-negation/verb", None),  # no object: an adjective-like participle (round 5)
     ("The floor was dirty.", "double-negation/antonym", "The floor wasn't clean."),
     ("The stove is quiet.", "double-negation/antonym", "The stove isn't noisy."),
     ("The stove is noisy.", "double-negation/antonym", "The stove isn't quiet."),

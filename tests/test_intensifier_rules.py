@@ -71,6 +71,11 @@ CASES = [
     ("I bought the comfortable boots.", AMP, {"I bought the really comfortable boots."}),
     ("It was a comfortable trip.", AMP, {"It was a very comfortable trip."}),
     ("I especially love the side pockets.", REM, set()),
+    # round-5 blind review: wishes, sizes, contrasts in time or by comparison
+    ("Have a good trip!", AMP, set()),
+    ("They sent a great number of spare pegs.", AMP, set()),
+    ("It was comfortable until the strap broke.", SOFT, set()),
+    ("Light stoves vs heavy stoves.", AMP, set()),
     ("The strap is especially comfortable.", REM, set()),
     ("The strap is really comfortable.", REM, {"The strap is comfortable."}),
     # manner adverbs

@@ -262,6 +262,7 @@ CASES = [
     ("So far I am more than pleased.", NO, NO),  # "not more than pleased" is no opposite
     ("Sweet dreams...", NO, NO),  # a wish
     ("Poor reliability.", "negation/fragment", None),  # negative bare noun phrase: a hedge at best
+    ("The stove sounds very, very quiet.", "negation/do-support", None),  # stacked degree words: a hedge (round 5)
     ("So annoyed.", "negation/fragment", None),  # "not so annoyed" is less annoyed, not pleased
     ("The pad is easy to inflate and comfortable.", "negation/copula", "The pad isn't easy to inflate or comfortable."),
     ("The lamp was bright and reliable.", "negation/copula", "The lamp wasn't bright or reliable."),
