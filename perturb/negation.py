@@ -28,7 +28,11 @@ a sentence with no toggled clause. A clause is skipped when its negation would g
 the opposite: extreme, superlative, comparative or capitalised opinion words ("isn't perfect",
 "wouldn't LOVE"), extreme amplifiers ("wasn't absolute garbage"), negative words with a degree
 word ("isn't very bad"), may/might/must and "can be", hedges (almost, mostly), approximate
-measures, and frequency adverbs where the negation cannot go ("*aren't mostly thrilled"). The
+measures, frequency adverbs where the negation cannot go ("*aren't mostly thrilled"), time frames
+("didn't break two weeks after I bought it", "until last night"), stacked degree words ("very,
+very"), "so"/"too" on a negative word ("not so annoyed"), and elliptical echoes ("is a plus, as
+are the pegs"). A list of opinion adjectives on the predicate joined by one "and" is negated with
+"or" ("isn't quick or easy"). The
 opinion word must be the main predicate's (not a word in the subject, a relative clause or a
 noun-phrase modifier). See :func:`text_guard` and :func:`clause_doubt`.
 
