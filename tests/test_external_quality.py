@@ -79,7 +79,7 @@ def _broken(source: str, variant: str, nlp) -> list[str]:
 
 @pytest.mark.xfail(
     strict=True,
-    reason="known gap, reported as expected-to-fail (not as a pass): negation reaches about 6 % of the "
+    reason="known gap, reported as expected-to-fail (not as a pass): negation reaches about 5 % of the "
     "clear-opinion snippets, not 80 %; most misses carry no lexicon opinion word (see the issue notes)",
 )
 def test_negation_applies_to_most_clearly_opinionated_sentences(snippets, suite):
