@@ -233,3 +233,15 @@ def test_build_keeps_reorder_variants_deterministic(nlp, lex):
     ]
     assert runs[0] == runs[1]
     assert {r for r, _ in runs[0]} >= {COORD, ADVL, SHUF}
+
+
+def test_shuffle_is_not_held_to_grammar_checks(nlp):
+    """A shuffle may put "didn't" before a past form; it keeps its words, so it stays."""
+    from pairflip.perturb.base import Candidate, TokenEdit
+
+    doc = nlp("I didn't go and it broke.")
+    shuffled = "It didn't broke and I go."
+    cand = Candidate("reorder/shuffle", "none", (TokenEdit(0, len(doc), shuffled),))
+    assert validate(doc, cand, shuffled) is None
+    same_words_other_rule = Candidate("reorder/clauses", "hold", cand.edits)
+    assert validate(doc, same_words_other_rule, shuffled) == "agreement: do-support needs the base form"
