@@ -49,8 +49,8 @@ def candidates(doc: "Doc", ctx: Context) -> Iterator[Candidate]:
     polarities = {opinion_of(t, lex).polarity for cl in an.clauses for t in cl.opinion}
     if len(polarities) != 1 or any(cl.nonfinite_opinion for cl in an.clauses):
         return
-    if text_guard(doc, lex) is not None or any(g.norm(t.text) in _ADDITIVE for t in tokens(doc)):
-        return  # contrasts, emoticons, interjections, hashtags, long texts: as for negation
+    if any(g.norm(t.text) in _ADDITIVE for t in tokens(doc)):
+        return
     text_style = g.text_style(doc)
     for cl in an.clauses:
         head = cl.head

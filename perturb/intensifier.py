@@ -473,7 +473,8 @@ def _edits_for(doc: "Doc", tok: "Token", entry: "OpinionWord", role: str, degree
     if k - 1 >= sent_of(tok).start and tokens(doc)[k].lower_ in ARTICLES and tokens(doc)[k - 1].lower_ in EXCLAMATIVE:
         return  # "What a great lantern!", "such a roomy tent", "quite a heavy pack"
     base_meta = {"target": tok.text, "polarity": entry.polarity, "grade": entry.grade, "role": role}
-    if mod is not None and " ".join(t.lower_ for t in doc[mod[0] : tok.i]) in FOCUS_PARTICLES:
+    old = " ".join(t.lower_ for t in doc[mod[0] : tok.i]) if mod is not None else ""
+    if old in FOCUS_PARTICLES:
         return  # "I especially love X": a focus on X, not a degree; dropping it weakens nothing (round 4)
     if role == "verb":
         if mod is not None and mod[1] in ("amplifier", "extreme-amplifier"):
@@ -506,7 +507,6 @@ def _edits_for(doc: "Doc", tok: "Token", entry: "OpinionWord", role: str, degree
             yield _candidate(doc, tok, tok.i, soft.split(), "intensifier/soften", dict(base_meta, op="insert", word=soft))
         return
     start, kind = mod
-    old = " ".join(t.lower_ for t in doc[start : tok.i])
     if kind in ("amplifier", "extreme-amplifier"):
         yield _candidate(doc, tok, start, [], "intensifier/remove", dict(base_meta, op="remove", removed=old))
         if not extreme:

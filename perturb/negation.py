@@ -512,7 +512,7 @@ def fragment(sent, lexicon: "Lexicon") -> Fragment | str:
         words = "not the"
     elif root.tag_ in ("NNS", "NNPS") or g.norm(root.text) in _MASS or lemma(root).lower() in _MASS or \
             g.norm(root.text).endswith(("ity", "ness", "ance", "ence", "ship", "ism", "ics", "ing")):
-        if opinion_of(op, lexicon) is not None and opinion_of(op, lexicon).polarity < 0:
+        if opinion_of(op, lexicon).polarity < 0:  # op is the fragment's opinion word
             return "negative bare noun phrase"  # "not poor customer service." is a hedge at best (blind review, round 4)
         words = "not"  # "Not great value for the price."
     else:
@@ -1069,8 +1069,8 @@ def _insertion_guard(cl: Clause, main: list["Token"], lexicon: "Lexicon") -> str
     if any(g.norm(x.text) in ("about", "around", "roughly") and x.head.dep_ in ("pobj", "npadvmod", "prep") or
            g.norm(x.text) in ("about", "around") and x.dep_ in ("advmod", "quantmod") for x in cl.own):
         return "an approximate measure"  # "worked great for about a month"
-    frame_heads = {cl.head.i} | {t.i for t in predicate_opinion(cl)}
-    for x in (c for t in cl.own if t.i in frame_heads for c in t.children):
+    keep = {t.i for t in predicate_opinion(cl)} | {cl.head.i}
+    for x in (c for t in cl.own if t.i in keep for c in t.children):
         if (x.dep_ == "prep" and g.norm(x.text) in TIME_FRAME_PREPS) or (x.dep_ == "advcl" and any(
                 m.dep_ in ("mark", "advmod") and g.norm(m.text) in TIME_FRAME_WORDS for m in x.children)):
             return f"time frame {x.text!r}"  # "didn't break just two weeks after ...": "not then" (blind review, round 4)
@@ -1079,7 +1079,6 @@ def _insertion_guard(cl: Clause, main: list["Token"], lexicon: "Lexicon") -> str
     for t in main:
         if any(g.norm(c.text) == "as" and c.dep_ == "advmod" for c in t.children):
             return "equative 'as ... as'"  # "doesn't sound just as good as": a comparison
-    keep = {t.i for t in predicate_opinion(cl)} | {cl.head.i}
     for t in cl.opinion:
         if t.i in keep or (t.dep_ == "amod" and t.head.i in keep):
             continue
@@ -1319,10 +1318,8 @@ def plan(doc: "Doc", ctx: Context) -> "Candidate | str":
             rules.append(res2[0])
             edits.extend(res2[1])
             inserted += 1
-            if _coordinated_predicate(cl):
-                edit = or_for_and(cl, ctx.lexicon)
-                if edit is None:  # clause_doubt let it through only when the rewrite exists
-                    return "coordinated opinion predicate"
+            edit = or_for_and(cl, ctx.lexicon)  # clause_doubt let a coordination through only if it exists
+            if edit is not None:
                 edits.append(edit)
     for fr in an.fragments:
         for t in sent_of(fr.root):

@@ -13,7 +13,7 @@ import sqlite3
 from typing import Any, Callable, Iterable, Sequence
 
 from pairflip.labels import PROBABILITY_TOLERANCE, LabelMap
-from pairflip.probes.batching import paused_gc, settled_records
+from pairflip.probes.batching import paused_gc, run_batches, settled_records
 from pairflip.probes.expectations import judge
 from pairflip.records import SHOULDS, Pair, PairflipError, Prediction, Results, Suite, Verdict, suite_sha256
 
@@ -54,26 +54,18 @@ def predict_all(
         on_batch(done, total)
     batches = [todo[i : i + batch_size] for i in range(0, len(todo), batch_size)]
     with settled_records() as settle:
-        _predict_batches(model, batches, preds, cache, fp, concurrency, on_batch, done, total, settle)
+        for _, batch, out in run_batches(model, batches, concurrency=concurrency):
+            if cache is not None:
+                try:
+                    cache.put_many(fp, list(zip(batch, out)))
+                except sqlite3.Error as err:
+                    raise PairflipError(f"--cache {getattr(cache, 'path', '')}: cannot write predictions ({err})") from None
+            preds.update(zip(batch, out))
+            done += len(batch)
+            settle()
+            if on_batch:
+                on_batch(done, total)
     return preds
-
-
-def _predict_batches(model: Any, batches: list[list[str]], preds: dict[str, Prediction], cache: Any, fp: str,
-                     concurrency: int, on_batch: Callable[[int, int], None] | None, done: int, total: int,
-                     settle: Callable[[], None]) -> None:
-    from pairflip.probes.batching import run_batches
-
-    for _, batch, out in run_batches(model, batches, concurrency=concurrency):
-        if cache is not None:
-            try:
-                cache.put_many(fp, list(zip(batch, out)))
-            except sqlite3.Error as err:
-                raise PairflipError(f"--cache {getattr(cache, 'path', '')}: cannot write predictions ({err})") from None
-        preds.update(zip(batch, out))
-        done += len(batch)
-        settle()
-        if on_batch:
-            on_batch(done, total)
 
 
 def label_map(labels: LabelMap | Sequence[str] | str | None, model: Any, preds: dict[str, Prediction]) -> LabelMap:
