@@ -55,7 +55,7 @@ class SourceText:
         return stable_id("source", self.text)
 
 
-@dataclass
+@dataclass(slots=True)  # slots: scoring reads every pair's fields, and suites hold millions
 class Pair:
     """A minimal pair: a source, a rule-made variant, and what the label *should* do."""
 
@@ -139,10 +139,8 @@ class Suite:
 
 
 def suite_sha256(pairs: Iterable["Pair"]) -> str:
-    h = hashlib.sha256()
-    for p in pairs:
-        h.update(f"{p.id}\t{p.family}\t{p.should}\n".encode("utf-8"))
-    return h.hexdigest()
+    """SHA-256 of every pair's ``id TAB family TAB should`` line, in order."""
+    return hashlib.sha256("".join([f"{p.id}\t{p.family}\t{p.should}\n" for p in pairs]).encode("utf-8")).hexdigest()
 
 
 def text_digest(text: str) -> bytes:

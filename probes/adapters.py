@@ -23,13 +23,14 @@ from __future__ import annotations
 
 import hashlib
 import importlib
+import io
 import inspect
 import os
 import pickle
 import sys
-from typing import Any
+from typing import Any, Sequence
 
-from pairflip.probes.batching import ModelError, build_predictions, paused_gc, prediction_from_item
+from pairflip.probes.batching import ModelError, build_predictions, outputs_from_items, paused_gc
 from pairflip.records import PairflipError, Prediction
 
 SPEC_FORMS = "path/model.joblib, package.module:name, http://host:port/path or cmd:COMMAND"
@@ -45,7 +46,7 @@ class Model:
     classes: list[str] | None = None
     parallel: bool = False  # may several batches run at once (threads)?
 
-    def predict(self, texts: list[str]) -> list[Prediction]:  # pragma: no cover - interface
+    def predict(self, texts: list[str]) -> Sequence[Prediction]:  # pragma: no cover - interface
         raise NotImplementedError
 
     def fingerprint(self) -> str:
@@ -103,7 +104,7 @@ class PythonModel(Model):
                 raise PairflipError(f"model {self.spec}: classes_ {raw_classes!r} are not labels ({err})") from None
         self._fp = fingerprint
 
-    def predict(self, texts: list[str]) -> list[Prediction]:
+    def predict(self, texts: list[str]) -> Sequence[Prediction]:
         obj = self.obj
         if self.labels_from == "proba" and self.classes and hasattr(obj, "predict_proba"):
             proba = obj.predict_proba(texts)
@@ -130,7 +131,7 @@ class PythonModel(Model):
         if len(raw) != len(texts):
             raise ModelError(f"{len(texts)} texts got {len(raw)} outputs; expected one output per text")
         with paused_gc():
-            return [prediction_from_item(x, i) for i, x in enumerate(raw)]
+            return outputs_from_items(raw)
 
     def fingerprint(self) -> str:
         if self._fp is None:
@@ -163,10 +164,41 @@ def _object_fingerprint(obj: Any, spec: str) -> str:
         with open(src, "rb") as fh:
             h.update(fh.read())
     try:
-        h.update(pickle.dumps(obj, protocol=4))
+        buf = io.BytesIO()
+        _StablePickler(buf, protocol=4).dump(obj)
+        h.update(buf.getvalue())
     except Exception:  # lambdas, closures: the source file and spec have to do
         h.update(type(obj).__qualname__.encode())
     return h.hexdigest()
+
+
+# State that differs from process to process for the same fitted model: scikit-learn's text
+# vectorizers keep ``id()`` of their stop-word list (a memory address) to notice a change.
+_VOLATILE_STATE = frozenset({"_stop_words_id"})
+
+
+class _StablePickler(pickle._Pickler):  # type: ignore[name-defined]
+    """Pickles the same bytes for the same model in every process, so a prediction cache made by
+    one run is found by the next: sets are written sorted (their order follows string hashing,
+    which is salted per process) and the volatile state above is left out. The pure-Python
+    pickler is used because the C one never asks ``reducer_override`` about sets."""
+
+    def reducer_override(self, obj: Any) -> Any:
+        t = type(obj)
+        if t is set or t is frozenset:
+            try:
+                items = sorted(obj)
+            except TypeError:
+                items = sorted(obj, key=repr)
+            return t, (items,)
+        if t.__module__ == "builtins" or isinstance(obj, type):
+            return NotImplemented
+        state = getattr(obj, "__dict__", None)
+        if type(state) is dict and not _VOLATILE_STATE.isdisjoint(state):
+            rv = obj.__reduce_ex__(4)
+            if isinstance(rv, tuple) and len(rv) >= 3 and isinstance(rv[2], dict):
+                return (*rv[:2], {k: v for k, v in rv[2].items() if k not in _VOLATILE_STATE}, *rv[3:])
+        return NotImplemented
 
 
 def _describe_obj(obj: Any) -> str:

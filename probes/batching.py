@@ -18,6 +18,7 @@ from collections.abc import Mapping
 from typing import Any, Callable, Iterator, Sequence
 
 from pairflip.labels import PROBABILITY_TOLERANCE, normalise_label
+from pairflip.probes.outputs import Outputs
 from pairflip.records import PairflipError, Prediction
 
 
@@ -99,13 +100,8 @@ def settled_records() -> Iterator[Callable[[], None]]:
             gc.unfreeze()
 
 
-class CheckedPredictions(list):
-    """Predictions already checked in one go (a well-formed probability matrix): the per-item
-    checks of :func:`check_outputs` need not run again."""
-
-
-def build_predictions(n: int, **columns: Any) -> list[Prediction]:
-    """Predictions from column-wise outputs; see :func:`_build_predictions`."""
+def build_predictions(n: int, **columns: Any) -> Outputs:
+    """Checked outputs from column-wise model outputs; see :func:`_build_predictions`."""
     with paused_gc():
         return _build_predictions(n, **columns)
 
@@ -117,11 +113,13 @@ def _build_predictions(
     probabilities: Sequence[Sequence[Any]] | None = None,
     classes: Sequence[Any] | None = None,
     scores: Sequence[Any] | None = None,
-) -> list[Prediction]:
-    """Predictions from column-wise outputs (a list of labels, a probability matrix over
-    ``classes``, a list of scalar scores), checking every length against ``n`` texts.
+) -> Outputs:
+    """Checked outputs from column-wise model outputs (a list of labels, a probability matrix
+    over ``classes``, a list of scalar scores), checking every length against ``n`` texts.
 
-    Without labels, each label is the most probable class.
+    Without labels, each label is the most probable class. A well-formed float matrix is checked
+    in one go and kept as it is (an :class:`~pairflip.probes.outputs.Outputs` block); anything
+    else is checked value by value, and the first bad value is named.
     """
     if labels is None and probabilities is None:
         raise ModelError("the output holds neither labels nor probabilities")
@@ -143,11 +141,12 @@ def _build_predictions(
             raise ModelError(f"the classes {cls} repeat a label")
     fast = _fast_probabilities(cols.get("probabilities"), n, cls) if cls is not None else None
     if fast is not None and scores is None:
-        rows, best = fast
+        arr, best = fast
         if labels is None:
-            return CheckedPredictions([Prediction(cls[b], None, dict(zip(cls, row))) for row, b in zip(rows, best)])
-        return CheckedPredictions(Prediction(as_label(lab, i), None, dict(zip(cls, row)))
-                                  for i, (lab, row) in enumerate(zip(cols["labels"], rows)))
+            return Outputs(probabilities=arr, classes=cls, best=best)
+        return Outputs(labels=[as_label(lab, i) for i, lab in enumerate(cols["labels"])], probabilities=arr, classes=cls)
+    if cls is None and scores is None and labels is not None:
+        return Outputs(labels=[as_label(lab, i) for i, lab in enumerate(cols["labels"])])
     out = []
     for i in range(n):
         probs = None
@@ -169,26 +168,28 @@ def _build_predictions(
         if scores is not None:
             sc = _float(cols["scores"][i], f"score of output {i}")
         out.append(Prediction(label=lab, score=sc, probabilities=probs))
-    return out
+    return check_outputs(range(n), out)
 
 
-def _fast_probabilities(col: Any, n: int, cls: list[str]) -> tuple[list[list[float]], list[int]] | None:
-    """A well-formed float matrix, checked in one go (finite, >= 0, rows summing to 1): its rows
-    and each row's most probable column; ``None`` sends the caller down the per-value path,
-    which names the first bad value."""
+def _fast_probabilities(col: Any, n: int, cls: list[str]) -> tuple[Any, Any] | None:
+    """A well-formed float matrix, checked in one go (finite, >= 0, rows summing to 1): a float64
+    copy of it (the model may reuse its buffer) and each row's most probable column; ``None``
+    sends the caller down the per-value path, which names the first bad value."""
+    import numpy as np
+
     try:
-        import numpy as np
-
         arr = np.asarray(col)
     except (TypeError, ValueError):
         return None
     if arr.dtype.kind != "f" or arr.shape != (n, len(cls)):
         return None
-    if not np.isfinite(arr).all() or (arr < 0).any():
+    arr = np.array(arr, dtype=np.float64)
+    if n == 0:
+        return arr, np.zeros(0, dtype=np.intp)
+    # NaN fails both comparisons; an infinity makes its row's sum infinite or NaN.
+    if not (arr.min() >= 0.0 and np.abs(arr.sum(axis=1) - 1.0).max() <= PROBABILITY_TOLERANCE):
         return None
-    if n and np.abs(arr.sum(axis=1) - 1.0).max() > PROBABILITY_TOLERANCE:
-        return None
-    return arr.tolist(), arr.argmax(axis=1).tolist()
+    return arr, arr.argmax(axis=1)
 
 
 _LABEL_SCORE = frozenset({"label", "score"})
@@ -230,12 +231,41 @@ def prediction_from_item(x: Any, i: int) -> Prediction:
     return Prediction(label=as_label(x, i))
 
 
+def outputs_from_items(raw: list[Any]) -> Outputs:
+    """Checked outputs from one output per text (see :func:`prediction_from_item`). The common
+    forms, plain labels and ``{"label", "score"}`` dicts, are kept as two lists; a batch holding
+    anything else is turned into Predictions one by one."""
+    labels: list[str] = []
+    scores: list[float | None] = []
+    scored = False
+    add_label, add_score = labels.append, scores.append
+    for x in raw:
+        if type(x) is str:
+            lab, sc = x, None
+        elif type(x) is dict and x.keys() <= _LABEL_SCORE:
+            lab, sc = x.get("label"), x.get("score")
+            if sc is not None:
+                if type(sc) is not float or not -1.0 <= sc <= 1.0:  # NaN fails the comparison
+                    break
+                scored = True
+        else:
+            break
+        if type(lab) is not str or not lab or lab[0].isspace() or lab[-1].isspace():
+            break
+        add_label(lab)
+        add_score(sc)
+    else:
+        return Outputs(labels=labels, scores=scores if scored else None)
+    return check_outputs(raw, [prediction_from_item(x, i) for i, x in enumerate(raw)])
+
+
 # --------------------------------------------------------------------------- checking a batch
 
 
-def check_outputs(batch: Sequence[str], out: Any) -> list[Prediction]:
-    """Raise :class:`ModelError` unless ``out`` is one well-formed Prediction per text."""
-    if type(out) is CheckedPredictions:
+def check_outputs(batch: Sequence[Any], out: Any) -> Outputs:
+    """Raise :class:`ModelError` unless ``out`` is one well-formed Prediction per text; return
+    the outputs as a checked block (an :class:`Outputs` block from an adapter is checked already)."""
+    if type(out) is Outputs:
         if len(out) != len(batch):
             raise ModelError(f"{len(batch)} texts got {len(out)} outputs; expected one output per text")
         return out
@@ -269,7 +299,7 @@ def check_outputs(batch: Sequence[str], out: Any) -> list[Prediction]:
             or not (math.isfinite(p.score) and -1.0 <= p.score <= 1.0)
         ):
             raise ModelError(f"output {i}: score {p.score!r} is not a number in [-1, 1]")
-    return out
+    return Outputs.of(out)
 
 
 def _where(model: Any, index: int, total: int, batch: Sequence[str]) -> str:
@@ -280,7 +310,7 @@ def _where(model: Any, index: int, total: int, batch: Sequence[str]) -> str:
     )
 
 
-def call_batch(model: Any, batch: Sequence[str], index: int, total: int) -> list[Prediction]:
+def call_batch(model: Any, batch: Sequence[str], index: int, total: int) -> Outputs:
     """One checked model call; every failure becomes a PairflipError naming model and batch."""
     try:
         out = model.predict(list(batch))
@@ -300,7 +330,7 @@ def call_batch(model: Any, batch: Sequence[str], index: int, total: int) -> list
 
 def run_batches(
     model: Any, batches: Sequence[Sequence[str]], *, concurrency: int = 1
-) -> Iterator[tuple[int, Sequence[str], list[Prediction]]]:
+) -> Iterator[tuple[int, Sequence[str], Outputs]]:
     """Yield ``(index, batch, predictions)`` for every batch, as each one finishes.
 
     With ``concurrency > 1`` and a model that allows it (``model.parallel``: HTTP and ``cmd:``
@@ -316,7 +346,7 @@ def run_batches(
             yield i, b, call_batch(model, b, i, total)
         return
     pool = ThreadPoolExecutor(max_workers=concurrency, thread_name_prefix="pairflip-batch")
-    running: dict[Future[list[Prediction]], int] = {}
+    running: dict[Future[Outputs], int] = {}
     next_i = 0
     try:
         while next_i < total or running:

@@ -54,6 +54,7 @@ import subprocess
 import threading
 import time
 import weakref
+from collections.abc import Sequence
 
 from pairflip.probes.adapters import Model
 from pairflip.probes.batching import ModelError, build_predictions
@@ -225,7 +226,7 @@ class CommandModel(Model):
         with self._lock:
             self._idle.append(w)
 
-    def predict(self, texts: list[str]) -> list[Prediction]:
+    def predict(self, texts: list[str]) -> Sequence[Prediction]:
         payload = (json.dumps({"texts": list(texts)}, ensure_ascii=True) + "\n").encode("ascii")
         w = self._take()
         ok = False

@@ -73,3 +73,48 @@ def judge(
     if scored and abs(variant_score) - abs(source_score) > margin + _EPS:  # type: ignore[arg-type]
         return "violation"
     return "ok"
+
+
+OUTCOMES = ("ok", "violation", "n/a")
+_OK, _VIOLATION, _NA = 0, 1, 2
+SHOULD_CODES = {s: i for i, s in enumerate(SHOULDS)}
+
+
+def judge_many(
+    should: "np.ndarray",
+    source_polarity: "np.ndarray",
+    variant_polarity: "np.ndarray",
+    source_code: "np.ndarray",
+    variant_code: "np.ndarray",
+    source_score: "np.ndarray",
+    variant_score: "np.ndarray",
+    margin: float,
+    source_strength: "np.ndarray",
+    variant_strength: "np.ndarray",
+) -> "np.ndarray":
+    """:func:`judge` for many pairs at once, on numpy arrays: ``should`` as codes
+    (:data:`SHOULD_CODES`), labels as codes on the scale (equal codes, equal labels), scores with
+    NaN for "none". Returns outcome codes indexing :data:`OUTCOMES`. The rules are the module
+    table's, operation for operation; tests/test_outputs.py checks it against :func:`judge`."""
+    import numpy as np
+
+    sp = source_polarity.astype(np.int8, copy=False)
+    vp = variant_polarity.astype(np.int8, copy=False)
+    polar = sp != 0
+    reversed_ = polar & (vp == -sp)
+    scored = ~(np.isnan(source_score) | np.isnan(variant_score))
+    limit = margin + _EPS
+    with np.errstate(invalid="ignore"):  # NaN scores compare False and are masked by ``scored``
+        fell = scored & (np.abs(source_score) - np.abs(variant_score) > limit)
+        rose = scored & (np.abs(variant_score) - np.abs(source_score) > limit)
+    code = {s: should == c for s, c in SHOULD_CODES.items()}
+    flip_v = code["flip"] & polar & (vp == sp)
+    hold_v = code["hold"] & (variant_code != source_code)
+    strengthen_v = code["strengthen"] & (
+        reversed_ | (polar & (vp == 0)) | (polar & (vp == sp) & (variant_strength < source_strength)) | fell
+    )
+    weaken_v = code["weaken"] & (reversed_ | rose)
+    out = np.full(should.shape, _OK, dtype=np.int8)
+    out[flip_v | hold_v | strengthen_v | weaken_v] = _VIOLATION
+    out[code["flip"] & ~polar] = _NA
+    return out

@@ -37,7 +37,7 @@ import threading
 import urllib.error
 import urllib.parse
 import urllib.request
-from typing import Any
+from typing import Any, Sequence
 
 from pairflip.probes.adapters import Model
 from pairflip.probes.batching import ModelError, build_predictions
@@ -132,7 +132,7 @@ class HttpModel(Model):
         except (ConnectionError, http.client.HTTPException, OSError) as err:
             return None, b"", f"connection failed ({type(err).__name__}: {err})", None
 
-    def predict(self, texts: list[str]) -> list[Prediction]:
+    def predict(self, texts: list[str]) -> Sequence[Prediction]:
         body = json.dumps({"texts": list(texts)}, ensure_ascii=False).encode("utf-8")
         attempts = self.retries + 1
         for attempt in range(attempts):
@@ -147,7 +147,7 @@ class HttpModel(Model):
             f"({self.retries} retries with backoff; raise --retries or --timeout if the server is only slow)"
         )
 
-    def _parse(self, data: bytes, n: int) -> list[Prediction]:
+    def _parse(self, data: bytes, n: int) -> Sequence[Prediction]:
         try:
             obj = json.loads(data.decode("utf-8"))
         except (UnicodeDecodeError, json.JSONDecodeError):

@@ -4,6 +4,11 @@ Many pairs share a source sentence, so the suite's texts are collected first (ea
 first-seen order) and sent to the model in batches of ``batch_size``. With a prediction cache
 the texts it already holds for this model are not sent again, and each finished batch is
 committed at once, so an interrupted run resumes where it stopped.
+
+Outputs stay column-wise (:mod:`pairflip.probes.outputs`): probability matrices as arrays,
+polarity scores computed per run of batches, every expectation judged on arrays
+(:func:`~pairflip.probes.expectations.judge_many`); the only per-pair Python work left is making
+the Verdict records themselves.
 """
 
 from __future__ import annotations
@@ -12,9 +17,12 @@ import math
 import sqlite3
 from typing import Any, Callable, Iterable, Sequence
 
+import numpy as np
+
 from pairflip.labels import PROBABILITY_TOLERANCE, LabelMap
 from pairflip.probes.batching import paused_gc, run_batches, settled_records
-from pairflip.probes.expectations import judge
+from pairflip.probes.expectations import OUTCOMES, SHOULD_CODES, judge_many
+from pairflip.probes.outputs import Outputs, Resolved, TextTable
 from pairflip.records import SHOULDS, Pair, PairflipError, Prediction, Results, Suite, Verdict, suite_sha256
 
 
@@ -27,7 +35,31 @@ def distinct_texts(pairs: Iterable[Pair]) -> list[str]:
     return list(seen)
 
 
-def predict_all(
+def _index_pairs(pairs: list[Pair]) -> tuple[list[str], np.ndarray, np.ndarray, np.ndarray]:
+    """The distinct texts (first-seen order), each pair's source and variant position among them,
+    and each pair's expectation as a code (an unknown expectation is named)."""
+    index: dict[str, int] = {}
+    put = index.setdefault
+    si: list[int] = []
+    vi: list[int] = []
+    for p in pairs:  # len() is read before the text goes in
+        si.append(put(p.source, len(index)))
+        vi.append(put(p.variant, len(index)))
+    try:
+        should = [SHOULD_CODES[p.should] for p in pairs]
+    except KeyError:
+        _check_pairs(pairs)
+        raise
+    return list(index), np.array(si, dtype=np.intp), np.array(vi, dtype=np.intp), np.array(should, dtype=np.int8)
+
+
+def predict_all(model: Any, texts: Sequence[str], **options: Any) -> dict[str, Prediction]:
+    """Predict each text once, in batches; texts already in ``cache`` are not sent again.
+    Returns ``{text: Prediction}``; the options are :func:`predict_table`'s."""
+    return predict_table(model, list(dict.fromkeys(texts)), **options).as_dict()
+
+
+def predict_table(
     model: Any,
     texts: Sequence[str],
     *,
@@ -35,47 +67,53 @@ def predict_all(
     cache: Any = None,
     concurrency: int = 1,
     on_batch: Callable[[int, int], None] | None = None,
-) -> dict[str, Prediction]:
-    """Predict each text once, in batches; texts already in ``cache`` are not sent again.
+) -> TextTable:
+    """Predict each of the distinct ``texts`` once, in batches of ``batch_size``; texts already in
+    ``cache`` are not sent again. Returns the outputs column-wise (:class:`TextTable`).
 
     The cache (see :mod:`pairflip.probes.cache`) is written batch by batch, so an interrupted
     or failed run keeps every finished batch. ``on_batch(done, total)`` reports progress in texts.
     """
     if isinstance(batch_size, bool) or not isinstance(batch_size, int) or batch_size < 1:
         raise PairflipError(f"--batch-size must be a whole number >= 1, got {batch_size!r}")
-    preds: dict[str, Prediction] = {}
+    table = TextTable(texts)
+    total = len(texts)
     fp = model.fingerprint() if cache is not None else ""
+    todo = np.arange(total, dtype=np.intp)
     if cache is not None:
-        preds.update(cache.get_many(fp, texts))
-    todo = [t for t in dict.fromkeys(texts) if t not in preds]
-    total = len(set(texts))
+        hits = cache.get_many(fp, texts)
+        if hits:
+            known = np.fromiter((t in hits for t in texts), dtype=bool, count=total)
+            table.add(todo[known], Outputs.of([hits[texts[i]] for i in np.flatnonzero(known).tolist()]))
+            todo = todo[~known]
     done = total - len(todo)
     if on_batch:
         on_batch(done, total)
-    batches = [todo[i : i + batch_size] for i in range(0, len(todo), batch_size)]
+    spans = [todo[i : i + batch_size] for i in range(0, len(todo), batch_size)]
+    batches = [[texts[j] for j in span.tolist()] for span in spans]
     with settled_records() as settle:
-        for _, batch, out in run_batches(model, batches, concurrency=concurrency):
+        for i, batch, out in run_batches(model, batches, concurrency=concurrency):
             if cache is not None:
                 try:
                     cache.put_many(fp, list(zip(batch, out)))
                 except sqlite3.Error as err:
                     raise PairflipError(f"--cache {getattr(cache, 'path', '')}: cannot write predictions ({err})") from None
-            preds.update(zip(batch, out))
+            table.add(spans[i], out)
             done += len(batch)
             settle()
             if on_batch:
                 on_batch(done, total)
-    return preds
+    return table
 
 
-def label_map(labels: LabelMap | Sequence[str] | str | None, model: Any, preds: dict[str, Prediction]) -> LabelMap:
+def label_map(labels: LabelMap | Sequence[str] | str | None, model: Any,
+              preds: dict[str, Prediction] | TextTable) -> LabelMap:
     """The mapping in force: ``labels`` when given, else recognised from the model's classes and
     every label it produced. Every label seen must be on the scale."""
-    seen: set[str] = set()
-    for p in preds.values():
-        seen.add(p.label)
-        if p.probabilities:
-            seen.update(p.probabilities)
+    if isinstance(preds, TextTable):
+        seen = preds.labels_seen()
+    else:
+        seen = Outputs.of(list(preds.values())).labels_seen()
     classes = list(getattr(model, "classes", None) or [])
     if isinstance(labels, LabelMap):
         lm = labels
@@ -153,48 +191,30 @@ def score(
     pairs = list(suite)
     if not pairs:
         raise PairflipError("the suite holds no pairs; nothing to score")
-    _check_pairs(pairs)
-    texts = distinct_texts(pairs)
+    texts, si, vi, should = _index_pairs(pairs)
     m = as_model(model)
     try:
-        preds = predict_all(m, texts, batch_size=batch_size, cache=cache, concurrency=concurrency, on_batch=on_batch)
+        table = predict_table(m, texts, batch_size=batch_size, cache=cache, concurrency=concurrency, on_batch=on_batch)
     finally:
         if not isinstance(model, Model):  # made here from a SPEC or object: stop its processes
             m.close()
-    lm = label_map(given, m, preds)
+    lm = label_map(given, m, table)
     with paused_gc():
-        verdicts = _judge_all(pairs, texts, preds, lm, f"model {m.spec}: ", float(margin))
+        verdicts = _judge_all(pairs, si, vi, should, table.resolve(lm, f"model {m.spec}: "), float(margin))
     return _results(suite, suite_path, pairs, texts, m, lm, margin, verdicts)
 
 
-def _judge_all(pairs: list[Pair], texts: list[str], preds: dict[str, Prediction], lm: LabelMap,
-               where: str, margin_f: float) -> list[Verdict]:
-    """One verdict per pair, each distinct text's label and polarity score worked out once."""
-    polar: dict[str, tuple[str, int, float, float | None]] = {}
-    per_label: dict[str, tuple[str, int, float]] = {}  # raw label -> (canonical, polarity, strength)
-    for t in texts:
-        p = preds[t]
-        known = per_label.get(p.label)
-        if known is None:
-            lab = lm.canonical(p.label)
-            known = per_label[p.label] = (lab, lm.polarity_of(lab), lm.strength(lab))
-        try:
-            sc = polarity_score(p, lm, where)
-        except PairflipError as err:
-            raise PairflipError(f"{err} (text {t[:60]!r})") from None
-        polar[t] = (known[0], known[1], known[2], sc)
-    verdicts: list[Verdict] = []
-    append = verdicts.append
-    for pair in pairs:  # positional Verdict fields: this loop runs once per pair
-        sl, sp, sst, ss = polar[pair.source]
-        vl, vp, vst, vs = polar[pair.variant]
-        should = pair.should
-        append(Verdict(
-            pair.id, sl, vl,
-            judge(should, sp, vp, sl, vl, ss, vs, margin_f, source_strength=sst, variant_strength=vst),
-            ss, vs, pair.family, pair.rule, should, pair.source, pair.variant, pair.source_id, pair.label,
-        ))
-    return verdicts
+def _judge_all(pairs: list[Pair], si: np.ndarray, vi: np.ndarray, should: np.ndarray, r: Resolved,
+               margin: float) -> list[Verdict]:
+    """One verdict per pair: the expectations judged on arrays (:func:`judge_many`), then one
+    Verdict built per pair from plain lists."""
+    outcome = judge_many(should, r.polarity[si], r.polarity[vi], r.code[si], r.code[vi], r.score[si], r.score[vi],
+                         margin, r.strength[si], r.strength[vi])
+    names = np.array(OUTCOMES, dtype=object)[outcome].tolist()
+    return [  # positional Verdict fields: this runs once per pair
+        Verdict(p.id, sl, vl, o, ss, vs, p.family, p.rule, p.should, p.source, p.variant, p.source_id, p.label)
+        for p, sl, vl, o, ss, vs in zip(pairs, r.labels_at(si), r.labels_at(vi), names, r.scores_at(si), r.scores_at(vi))
+    ]
 
 
 def _results(suite: Any, suite_path: str | None, pairs: list[Pair], texts: list[str], m: Any, lm: LabelMap,

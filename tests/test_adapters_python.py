@@ -79,6 +79,36 @@ def test_fingerprint_changes_with_state_and_is_stable():
     assert PythonModel(a, spec="x").fingerprint() != PythonModel(b, spec="x").fingerprint()
 
 
+
+_FIT_AND_PRINT = """
+from sklearn.feature_extraction.text import CountVectorizer
+from sklearn.linear_model import LogisticRegression
+from sklearn.pipeline import make_pipeline
+from pairflip.probes import PythonModel
+texts = ["the tent is dry", "the tent leaks", "the stove is great", "the stove is not great"] * 3
+pipe = make_pipeline(CountVectorizer(stop_words=["the", "is", "a", "of", "and"]), LogisticRegression())
+pipe.fit(texts, ["positive", "negative", "positive", "negative"] * 3)
+pipe.predict(["the tent"])
+print(PythonModel(pipe, spec="gear:pipe").fingerprint())
+"""
+
+
+def test_fingerprint_is_the_same_in_another_process():
+    """A cache made by one run must be found by the next: the same fitted text pipeline gets the
+    same fingerprint in processes with different string-hash salts (sets pickle in hash order)
+    and different memory layouts (the vectorizer keeps id() of its stop-word list)."""
+    import os
+    import subprocess
+    import sys
+
+    out = []
+    for seed in ("1", "2", "3"):
+        env = {**os.environ, "PYTHONHASHSEED": seed}
+        run = subprocess.run([sys.executable, "-c", _FIT_AND_PRINT], env=env, capture_output=True, text=True, timeout=120)
+        assert run.returncode == 0, run.stderr
+        out.append(run.stdout.strip())
+    assert len(out[0]) == 64 and out[0] == out[1] == out[2]
+
 @pytest.mark.parametrize(
     "spec, what",
     [
