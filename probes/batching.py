@@ -142,6 +142,9 @@ def _build_predictions(
     fast = _fast_probabilities(cols.get("probabilities"), n, cls) if cls is not None else None
     if fast is not None and scores is None:
         arr, best = fast
+        assert cls is not None
+        if type(labels) is list and labels == [cls[b] for b in best.tolist()]:
+            labels = None  # the usual answer: each label is its row's most probable class
         if labels is None:
             return Outputs(probabilities=arr, classes=cls, best=best)
         return Outputs(labels=[as_label(lab, i) for i, lab in enumerate(cols["labels"])], probabilities=arr, classes=cls)

@@ -199,8 +199,11 @@ def score(
         if not isinstance(model, Model):  # made here from a SPEC or object: stop its processes
             m.close()
     lm = label_map(given, m, table)
-    with paused_gc():
+    with settled_records() as settle, paused_gc():
         verdicts = _judge_all(pairs, si, vi, should, table.resolve(lm, f"model {m.spec}: "), float(margin))
+        # The verdicts live as long as the results: put them in the oldest generation at once
+        # rather than through two young-generation collections that walk every one of them.
+        settle()
     return _results(suite, suite_path, pairs, texts, m, lm, margin, verdicts)
 
 

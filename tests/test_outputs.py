@@ -197,3 +197,11 @@ def test_unknown_expectation_is_named():
     p.should = "reverse"
     with pytest.raises(PairflipError, match="'reverse'"):
         pairflip.score([p], lambda texts: ["positive"] * len(texts))
+
+
+def test_given_labels_are_kept_unless_they_are_the_most_probable_classes():
+    m = np.array([[0.5, 0.5], [0.2, 0.8]])
+    usual = build_predictions(2, labels=["neg", "pos"], probabilities=m, classes=["neg", "pos"])
+    assert usual._labels is None and usual.labels == ["neg", "pos"]  # from the matrix
+    tie_other_way = build_predictions(2, labels=["pos", "pos"], probabilities=m, classes=["neg", "pos"])
+    assert tie_other_way.labels == ["pos", "pos"] and tie_other_way[0].label == "pos"  # the model's own word wins
