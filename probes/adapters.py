@@ -16,7 +16,9 @@ Python objects can be passed directly to :func:`as_model` (``pairflip.score(suit
 
 Every model has a ``fingerprint()``: the prediction cache key. It changes when the model does
 (file bytes for a joblib file, module source and pickled state for a Python object, the command
-and its program and script for ``cmd:``); an HTTP model is fingerprinted by its URL only.
+and its program and script for ``cmd:``); an HTTP model is fingerprinted by its URL only. A Python
+object's pickle is written so that it is the same in every process (sets sorted, memory addresses
+left out), so a rerun finds the cache the last run wrote.
 """
 
 from __future__ import annotations

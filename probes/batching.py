@@ -1,7 +1,8 @@
 """Sending batches to a model, several in flight at once if asked, and checking what comes back.
 
-Every adapter returns one :class:`~pairflip.records.Prediction` per text. :func:`run_batches`
-checks each batch's outputs (count, missing or NaN labels, probabilities that are not a
+Every adapter returns one :class:`~pairflip.records.Prediction` per text, usually as a checked
+column-wise :class:`~pairflip.probes.outputs.Outputs` block (a sequence of Predictions made on
+demand). :func:`run_batches` checks each batch's outputs (count, missing or NaN labels, probabilities that are not a
 distribution, scores outside [-1, 1]) and turns any failure into a
 :class:`~pairflip.records.PairflipError` naming the model SPEC and the batch, so the user knows
 what failed and where. Batches are yielded as they finish; the caller writes each one to the
