@@ -233,19 +233,25 @@ def score(
 ) -> None:
     """Run a model on both sides of every pair and judge the expectations."""
     with _guard():
+        counts: dict[str, int] = {}
         results = score_to_file(
             suite, model, output, labels=labels, margin=margin, batch_size=batch_size, cache=cache,
-            concurrency=concurrency, timeout=timeout, retries=retries, force=force,
+            concurrency=concurrency, timeout=timeout, retries=retries, force=force, counts=counts,
         )
         n_viol = sum(1 for v in results.verdicts if v.verdict == "violation")
+        n_texts = results.header.get("texts_predicted")
+        where = f"{counts['cached']} from the cache, {n_texts - counts['cached']} sent to the model" if cache else "each sent once"
         _err_console().print(
-            f"scored {len(results.verdicts)} pairs ({results.header.get('texts_predicted')} distinct texts) "
+            f"scored {len(results.verdicts)} pairs ({n_texts} distinct texts: {where}) "
             f"with {model}: {n_viol} violations; wrote {output}",
             markup=False,
         )
 
 
-def score_to_file(suite_path: Path, model: str, output: Path, *, force: bool, cache: Path | None, timeout: float, retries: int, **kw: Any) -> Any:
+def score_to_file(suite_path: Path, model: str, output: Path, *, force: bool, cache: Path | None, timeout: float, retries: int,
+                  counts: dict[str, int] | None = None, **kw: Any) -> Any:
+    """Score a suite file into a results file; ``counts["cached"]`` gets how many distinct texts
+    the cache already held."""
     from pairflip.files import read_suite, write_results
     from pairflip.probes import load_model, score as _score
 
@@ -259,10 +265,13 @@ def score_to_file(suite_path: Path, model: str, output: Path, *, force: bool, ca
         cache_obj = PredictionCache(cache)
     try:
         with _progress("scoring texts") as bar:
-            results = _score(
-                suite, m, cache=cache_obj, suite_path=str(suite_path),
-                on_batch=(lambda done, total: bar.update(done, total)) if bar else None, **kw,
-            )
+            def on_batch(done: int, total: int) -> None:
+                if counts is not None:
+                    counts.setdefault("cached", done)  # the first report comes before any batch
+                if bar:
+                    bar.update(done, total)
+
+            results = _score(suite, m, cache=cache_obj, suite_path=str(suite_path), on_batch=on_batch, **kw)
     finally:
         if cache_obj is not None:
             cache_obj.close()

@@ -149,6 +149,8 @@ def test_cli_rerun_with_cache_sends_nothing_to_the_process(tmp_path):
     assert r2.code == 0, r2.stderr
     assert n_first == len(texts_of(make_pairs(10)))
     assert len(log.read_text(encoding="utf-8").splitlines()) == n_first  # nothing new was sent
+    assert f"({n_first} distinct texts: 0 from the cache, {n_first} sent to the model)" in r1.stderr
+    assert f"({n_first} distinct texts: {n_first} from the cache, 0 sent to the model)" in r2.stderr
 
     def body(p):
         return [json.loads(x) for x in p.read_text(encoding="utf-8").splitlines()[1:]]
