@@ -9,7 +9,7 @@ the demo's unigram logistic regression — the last two cost about ten microseco
 hardest case for a thin layer; each line also gives pairflip's own cost per text. "Direct" is the model's own
 ``predict_proba`` over the suite's distinct texts in batches of the same size; "pairflip" is
 ``pairflip.score`` on the same suite (collecting distinct texts, predicting, mapping labels,
-judging every pair). Each is timed REPEATS (11) times, interleaved; the minimum counts (the
+judging every pair). Each is timed REPEATS (15) times, interleaved; the minimum counts (the
 machines are noisy: single runs of the same code differ by half). Both sides run under the same
 cycle-collector settings (settled_records) and keep their outputs until the timer stops. The
 HTTP server runs in its own process. A last line times pairflip.score with a model that costs
@@ -27,7 +27,7 @@ from pathlib import Path
 
 from _corpus import real_texts
 
-REPEATS = 11
+REPEATS = 15
 
 
 class Counting:

@@ -103,8 +103,7 @@ def settled_records() -> Iterator[Callable[[], None]]:
 
 def build_predictions(n: int, **columns: Any) -> Outputs:
     """Checked outputs from column-wise model outputs; see :func:`_build_predictions`."""
-    with paused_gc():
-        return _build_predictions(n, **columns)
+    return _build_predictions(n, **columns)
 
 
 def _build_predictions(
@@ -151,6 +150,13 @@ def _build_predictions(
         return Outputs(labels=[as_label(lab, i) for i, lab in enumerate(cols["labels"])], probabilities=arr, classes=cls)
     if cls is None and scores is None and labels is not None:
         return Outputs(labels=[as_label(lab, i) for i, lab in enumerate(cols["labels"])])
+    with paused_gc():  # one Prediction per text from here on
+        return check_outputs(range(n), _per_value(n, cols, labels is not None, cls, scores is not None))
+
+
+def _per_value(n: int, cols: dict[str, Sequence[Any]], has_labels: bool, cls: list[str] | None,
+               has_scores: bool) -> list[Prediction]:
+    """One Prediction per text, each value checked on its own (the first bad one is named)."""
     out = []
     for i in range(n):
         probs = None
@@ -163,16 +169,16 @@ def _build_predictions(
                     f"output {i} has {len(row)} probabilities for {len(cls)} classes {cls}; expected one per class"
                 )
             probs = {c: _float(p, f"probability of {c!r} in output {i}") for c, p in zip(cls, row)}
-        if labels is not None:
+        if has_labels:
             lab = as_label(cols["labels"][i], i)
         else:
             assert probs is not None
             lab = max(probs, key=probs.__getitem__)  # first class wins a tie
         sc = None
-        if scores is not None:
+        if has_scores:
             sc = _float(cols["scores"][i], f"score of output {i}")
         out.append(Prediction(label=lab, score=sc, probabilities=probs))
-    return check_outputs(range(n), out)
+    return out
 
 
 def _fast_probabilities(col: Any, n: int, cls: list[str]) -> tuple[Any, Any] | None:
