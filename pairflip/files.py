@@ -515,12 +515,23 @@ def iter_suite(path: str | os.PathLike[str]) -> tuple[dict[str, Any], Iterator[P
     header, recs = _read_jsonl_records(p, SUITE_KIND)
 
     def pairs() -> Iterator[Pair]:
+        # Pairs of one source are written one after another, and every pair repeats its family,
+        # rule and expectation: share those strings instead of holding a copy per pair (less
+        # memory, and scoring's lookups by text then find the same object).
+        prev: Pair | None = None
         for lineno, obj in recs:
             _check_pair(p, lineno, obj)
             try:
-                yield Pair.from_dict(obj)
+                pair = Pair.from_dict(obj)
+                pair.family, pair.rule, pair.should = sys.intern(pair.family), sys.intern(pair.rule), sys.intern(pair.should)
             except (KeyError, TypeError, ValueError) as err:
                 raise PairflipError(f"{p}:{lineno}: bad pair record ({type(err).__name__}: {err})") from None
+            if prev is not None and pair.source == prev.source:
+                pair.source = prev.source
+                if pair.source_id == prev.source_id:
+                    pair.source_id = prev.source_id
+            prev = pair
+            yield pair
 
     return header, pairs()
 

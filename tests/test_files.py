@@ -191,6 +191,19 @@ def test_suite_round_trip_and_streaming(tmp_path):
     assert len(file_sha256(p)) == 64
 
 
+
+def test_reading_a_suite_shares_repeated_strings(tmp_path):
+    src = "The stove lights fast."
+    pairs = [Pair(source=src, variant=v, family="intensifier", rule="intensifier/amplify", should="strengthen")
+             for v in ("The stove lights really fast.", "The stove lights very fast.")]
+    pairs.append(Pair(source="The tent is dry.", variant="The tent is not dry.", family="negation",
+                      rule="negation/copula", should="flip"))
+    write_suite(Suite(header={}, pairs=pairs), tmp_path / "s.jsonl")
+    a, b, c = read_suite(tmp_path / "s.jsonl").pairs
+    assert a.source is b.source and a.source_id is b.source_id and a.rule is b.rule and a.should is b.should
+    assert c.source == "The tent is dry." and c.source is not a.source
+    assert [p.to_dict() for p in (a, b, c)] == [p.to_dict() for p in pairs]
+
 def test_results_round_trip(tmp_path):
     p = tmp_path / "r.jsonl"
     v = Verdict(id="x1", source_pred="positive", variant_pred="negative", verdict="ok", source_score=0.5,
