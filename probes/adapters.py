@@ -179,28 +179,27 @@ def _object_fingerprint(obj: Any, spec: str) -> str:
 _VOLATILE_STATE = frozenset({"_stop_words_id"})
 
 
-class _StablePickler(pickle._Pickler):  # type: ignore[name-defined]
+class _StablePickler(pickle.Pickler):
     """Pickles the same bytes for the same model in every process, so a prediction cache made by
     one run is found by the next: sets are written sorted (their order follows string hashing,
-    which is salted per process) and the volatile state above is left out. The pure-Python
-    pickler is used because the C one never asks ``reducer_override`` about sets."""
+    which is salted per process) and the volatile state above is left out. Both are swapped in
+    through ``persistent_id``, which the C pickler asks about every object (``reducer_override``
+    is never asked about sets); the bytes are only hashed, never unpickled."""
 
-    def reducer_override(self, obj: Any) -> Any:
+    def persistent_id(self, obj: Any) -> Any:
         t = type(obj)
+        if t is str or t is int or t is float:  # most objects in a model; nothing to swap
+            return None
         if t is set or t is frozenset:
             try:
                 items = sorted(obj)
             except TypeError:
                 items = sorted(obj, key=repr)
-            return t, (items,)
-        if t.__module__ == "builtins" or isinstance(obj, type):
-            return NotImplemented
+            return (t.__name__, items)
         state = getattr(obj, "__dict__", None)
-        if type(state) is dict and not _VOLATILE_STATE.isdisjoint(state):
-            rv = obj.__reduce_ex__(4)
-            if isinstance(rv, tuple) and len(rv) >= 3 and isinstance(rv[2], dict):
-                return (*rv[:2], {k: v for k, v in rv[2].items() if k not in _VOLATILE_STATE}, *rv[3:])
-        return NotImplemented
+        if type(state) is dict and not _VOLATILE_STATE.isdisjoint(state) and not isinstance(obj, type):
+            return (f"{t.__module__}.{t.__qualname__}", {k: v for k, v in state.items() if k not in _VOLATILE_STATE})
+        return None
 
 
 def _describe_obj(obj: Any) -> str:
