@@ -240,7 +240,10 @@ def score(
         )
         n_viol = sum(1 for v in results.verdicts if v.verdict == "violation")
         n_texts = results.header.get("texts_predicted")
-        where = f"{counts['cached']} from the cache, {n_texts - counts['cached']} sent to the model" if cache else "each sent once"
+        if cache:
+            where = f"{counts['cached']} from the cache, {n_texts - counts['cached']} sent to the model"
+        else:
+            where = "each sent once"
         _err_console().print(
             f"scored {len(results.verdicts)} pairs ({n_texts} distinct texts: {where}) "
             f"with {model}: {n_viol} violations; wrote {output}",

@@ -101,12 +101,7 @@ def settled_records() -> Iterator[Callable[[], None]]:
             gc.unfreeze()
 
 
-def build_predictions(n: int, **columns: Any) -> Outputs:
-    """Checked outputs from column-wise model outputs; see :func:`_build_predictions`."""
-    return _build_predictions(n, **columns)
-
-
-def _build_predictions(
+def build_predictions(
     n: int,
     *,
     labels: Sequence[Any] | None = None,
@@ -151,12 +146,12 @@ def _build_predictions(
     if cls is None and scores is None and labels is not None:
         return Outputs(labels=[as_label(lab, i) for i, lab in enumerate(cols["labels"])])
     with paused_gc():  # one Prediction per text from here on
-        return check_outputs(range(n), _per_value(n, cols, labels is not None, cls, scores is not None))
+        return check_outputs(range(n), _per_value(n, cols, cls))
 
 
-def _per_value(n: int, cols: dict[str, Sequence[Any]], has_labels: bool, cls: list[str] | None,
-               has_scores: bool) -> list[Prediction]:
-    """One Prediction per text, each value checked on its own (the first bad one is named)."""
+def _per_value(n: int, cols: dict[str, Sequence[Any]], cls: list[str] | None) -> list[Prediction]:
+    """One Prediction per text from the columns given, each value checked on its own (the first
+    bad one is named)."""
     out = []
     for i in range(n):
         probs = None
@@ -169,13 +164,13 @@ def _per_value(n: int, cols: dict[str, Sequence[Any]], has_labels: bool, cls: li
                     f"output {i} has {len(row)} probabilities for {len(cls)} classes {cls}; expected one per class"
                 )
             probs = {c: _float(p, f"probability of {c!r} in output {i}") for c, p in zip(cls, row)}
-        if has_labels:
+        if "labels" in cols:
             lab = as_label(cols["labels"][i], i)
         else:
             assert probs is not None
             lab = max(probs, key=probs.__getitem__)  # first class wins a tie
         sc = None
-        if has_scores:
+        if "scores" in cols:
             sc = _float(cols["scores"][i], f"score of output {i}")
         out.append(Prediction(label=lab, score=sc, probabilities=probs))
     return out
