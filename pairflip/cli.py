@@ -16,7 +16,7 @@ from typing import Any, Iterator, List, Optional
 import typer
 from rich.console import Console
 
-from pairflip.records import PairflipError
+from pairflip.records import Interrupted, PairflipError
 
 app = typer.Typer(
     add_completion=False,
@@ -71,7 +71,7 @@ def _guard() -> Iterator[None]:
         caught.append(signum)
         for s in watched:  # one-shot: let the clean-up run to its end
             signal.signal(s, signal.SIG_IGN)
-        raise KeyboardInterrupt
+        raise Interrupted
 
     old: dict[int, Any] = {}
     try:

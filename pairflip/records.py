@@ -24,6 +24,14 @@ class PairflipError(Exception):
     """
 
 
+class Interrupted(KeyboardInterrupt):
+    """A real SIGINT/SIGTERM received by the command line (raised by its signal handler).
+
+    A plain ``KeyboardInterrupt`` (or ``SystemExit``) raised by *model code* is a model failure,
+    not a user's interrupt; adapters tell the two apart by this class.
+    """
+
+
 def stable_id(*parts: str, length: int = 16) -> str:
     """A content hash: the same parts always give the same id, on every machine."""
     digest = hashlib.sha256("\x1f".join(parts).encode("utf-8")).hexdigest()
