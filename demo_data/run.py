@@ -9,7 +9,13 @@ from typing import Any
 
 from rich.console import Console
 
+from pairflip.records import PairflipError
 from pairflip.demo.models import MODEL_NAMES, load_sentences, trained
+
+
+def demo_files() -> list[str]:
+    """The files ``run_demo`` writes into its folder (checked by the CLI before any work)."""
+    return [f"{name}.joblib" for name in MODEL_NAMES] + ["suite.jsonl"] + [f"results-{name}.jsonl" for name in MODEL_NAMES]
 
 
 def run_demo(*, out_dir: Path | None, seed: int, examples: int, console: Console, log: Console) -> list[Any]:
@@ -33,7 +39,10 @@ def run_demo(*, out_dir: Path | None, seed: int, examples: int, console: Console
         models = {}
         for name in MODEL_NAMES:
             models[name] = trained(name, seed)
-            joblib.dump(models[name], out / f"{name}.joblib")
+            try:
+                joblib.dump(models[name], out / f"{name}.joblib")
+            except OSError as err:
+                raise PairflipError(f"{out / f'{name}.joblib'}: cannot write the demo model ({err.strerror or err})") from None
         log.print(f"trained {len(models)} demo models on demo_data/reviews.csv in {time.perf_counter() - t0:.1f}s", markup=False)
         t1 = time.perf_counter()
         suite = build_suite(load_sentences(), seed=seed)

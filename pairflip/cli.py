@@ -85,8 +85,24 @@ def _guard() -> Iterator[None]:
     except PairflipError as err:
         if DEBUG:
             raise
-        raise fail(_one_line(str(err))) from None
-    except KeyboardInterrupt:
+        text = str(err)
+        raise fail(text if getattr(err, "keep_lines", False) else _one_line(text)) from None
+    except SystemExit as err:
+        # pairflip's own code never calls sys.exit inside a command: this came from user code (a
+        # model, a module it imported). Passing it on would end the run with its code, 0 for
+        # sys.exit(0), and a CI gate would pass with nothing checked.
+        if DEBUG:
+            raise
+        what = f"sys.exit({err.code!r})" if not isinstance(err.code, str) else f"sys.exit({err.code!r}): {err.code}"
+        raise fail(_one_line(f"code run by pairflip (the model?) called {what}; nothing was written")) from None
+    except KeyboardInterrupt as err:
+        # Our handler (installed for the whole command) turns every SIGINT/SIGTERM into
+        # Interrupted; a plain KeyboardInterrupt while it was installed is a `raise` statement in
+        # someone's code, a model failure rather than the user's Ctrl-C.
+        if old and not caught and not isinstance(err, Interrupted):
+            if DEBUG:
+                raise
+            raise fail("code run by pairflip (the model?) raised KeyboardInterrupt; nothing was written") from None
         signum = caught[0] if caught else signal.SIGINT
         name = signal.Signals(signum).name
         _err_console().print(
@@ -105,20 +121,46 @@ def _guard() -> Iterator[None]:
             signal.signal(s, h if h is not None else signal.SIG_DFL)
 
 
-def _check_output(out: Path, inputs: list[Path], force: bool) -> None:
+def _same_file(a: Path, b: Path) -> bool:
+    try:
+        return a.resolve() == b.resolve() or (a.exists() and b.exists() and os.path.samefile(a, b))
+    except OSError:
+        return False
+
+
+def _check_output(out: Path, inputs: list[Path], force: bool, option: str = "-o", retry: str = "") -> None:
+    """Before any work: ``out`` is not an input, not a folder, not an existing file (unless
+    ``force``), and its folder takes a new file (a probe file is made and removed).
+
+    ``retry`` names what else the user can do when the file exists (audit: another --out-dir).
+    """
+    from pairflip.files import check_writable
+
     for i in inputs:
-        try:
-            same = out.resolve() == i.resolve() or (out.exists() and i.exists() and os.path.samefile(out, i))
-        except OSError:
-            same = False
-        if same:
-            raise PairflipError(f"-o {out}: the output file is also an input ({i}); choose another output path")
+        if _same_file(out, i):
+            raise PairflipError(f"{option} {out}: the output file is also an input ({i}); choose another output path")
     if out.is_dir():
-        raise PairflipError(f"-o {out}: is a folder; expected the path of the file to write")
+        raise PairflipError(f"{option} {out}: is a folder; expected the path of the file to write")
     if out.exists() and not force:
-        raise PairflipError(f"-o {out}: the file already exists; pass --force to overwrite it")
-    if not out.parent.is_dir():
-        raise PairflipError(f"-o {out}: folder {out.parent} does not exist")
+        raise PairflipError(f"{option} {out}: the file already exists; pass --force to overwrite it{retry}")
+    check_writable(out, option)
+
+
+def _check_outputs(outputs: list[tuple[str, Optional[Path]]], inputs: list[Path], force: bool) -> None:
+    """Every export path of one command: checked as :func:`_check_output`, and no two the same."""
+    given = [(opt, p) for opt, p in outputs if p is not None]
+    for k, (opt, p) in enumerate(given):
+        for opt2, p2 in given[:k]:
+            if _same_file(p, p2):
+                raise PairflipError(f"{opt} {p}: the same file as {opt2} {p2}; give each output its own path")
+        _check_output(p, inputs, force, option=opt)
+
+
+def _check_counts(**values: int) -> None:
+    """Options that count something (``--workers 0``, ``--max-per-rule -1``) must be at least 1."""
+    for name, value in values.items():
+        if value < 1:
+            raise PairflipError(f"--{name.replace('_', '-')} {value}: expected a whole number of at least 1")
 
 
 def _progress(description: str):
@@ -179,7 +221,8 @@ def build_to_file(corpus: Path, output: Path, *, families: Any, force: bool, **k
     from pairflip.perturb.lexicon import load_lexicon
     from pairflip.perturb.nlp import load_nlp
 
-    _check_output(output, [corpus], force)
+    _check_output(output, [corpus], force, option=kw.get("output_option", "-o"), retry=kw.get("retry", ""))
+    _check_counts(workers=kw["workers"], max_per_rule=kw["max_per_rule"])
     from pairflip.perturb.build import resolve_rules
 
     try:
@@ -259,6 +302,8 @@ def score_to_file(suite_path: Path, model: str, output: Path, *, force: bool, ca
     from pairflip.probes import load_model, score as _score
 
     _check_output(output, [suite_path] + ([cache] if cache else []), force)
+    if cache is not None and _same_file(cache, suite_path):
+        raise PairflipError(f"--cache {cache}: is the suite file itself; expected a separate SQLite file for the cache")
     suite = read_suite(suite_path)
     m = load_model(model, timeout=timeout, retries=retries)
     cache_obj = None
@@ -300,12 +345,22 @@ def show(
     cluster: Optional[str] = typer.Option(None, "--cluster", help="'source': bootstrap intervals over source sentences."),
     limit: List[str] = typer.Option([], "--limit", help="Gate limits to mark in the report (see `gate`)."),
     seed: int = typer.Option(0, "--seed", help="Seed of the cluster bootstrap."),
+    force: bool = typer.Option(False, "--force", help="Overwrite export files that already exist."),
 ) -> None:
     """Print the report; optionally export it as JSON, JUnit XML, Markdown or HTML."""
     with _guard():
         from pairflip.files import read_results
         from pairflip.report import summarize
 
+        if examples < 0:
+            raise PairflipError(f"--examples {examples}: expected 0 or more examples per family")
+        _check_outputs([("--json", json_out), ("--junit", junit), ("--markdown", markdown), ("--html", html)],
+                       list(results), force)
+        if limit:
+            from pairflip.report.gate import parse_limit
+
+            for x in limit:
+                parse_limit(x)  # a malformed limit fails before any file is read, caret line kept
         res = [read_results(p) for p in results]
         summaries = [summarize(r, cluster=cluster, seed=seed, examples=max(examples, 5)) for r in res]
         gate_outcomes = None
@@ -333,7 +388,7 @@ def _export(summary: Any, json_out: Path | None, junit: Path | None, markdown: P
         if path is None:
             continue
         text = fn(summary, gate=gate, examples=examples) if fn in (export.to_markdown, export.to_html) else fn(summary, gate=gate)
-        with atomic_writer(path) as fh:
+        with atomic_writer(path, force=True) as fh:  # checked by _check_outputs before the work
             fh.write(text)
         _err_console().print(f"wrote {path}", markup=False)
 
@@ -388,6 +443,7 @@ def compare(
     new: Path = typer.Argument(..., help="Results of the new model, on the same suite."),
     json_out: Optional[Path] = typer.Option(None, "--json", help="Write the comparison as JSON."),
     examples: int = typer.Option(3, "--examples", help="Newly broken pairs shown per family."),
+    force: bool = typer.Option(False, "--force", help="Overwrite the --json file if it exists."),
 ) -> None:
     """Paired comparison of two models on the same suite (McNemar exact, Holm-adjusted)."""
     with _guard():
@@ -395,12 +451,15 @@ def compare(
         from pairflip.report.compare import compare as _compare
         from pairflip.report.gate_view import render_comparison
 
+        if examples < 0:
+            raise PairflipError(f"--examples {examples}: expected 0 or more examples per family")
+        _check_outputs([("--json", json_out)], [old, new], force)
         comp = _compare(read_results(old), read_results(new))
         render_comparison(comp, _out_console(), examples=examples)
         if json_out:
             import json
 
-            with atomic_writer(json_out) as fh:
+            with atomic_writer(json_out, force=True) as fh:  # checked before the work
                 fh.write(json.dumps(comp.to_dict(), indent=2, ensure_ascii=False) + "\n")
 
 
@@ -449,12 +508,18 @@ def audit(
                 read_limits_file(limits_file)
             if on is not None and on not in ON:
                 raise PairflipError(f"--on {on!r}: expected point, upper or lower")
-        out_dir.mkdir(parents=True, exist_ok=True)
+        if examples < 0:
+            raise PairflipError(f"--examples {examples}: expected 0 or more examples per family")
+        _make_out_dir(out_dir)
         suite_path, results_path = out_dir / "suite.jsonl", out_dir / "results.jsonl"
+        retry = " or choose another --out-dir"
+        inputs = [corpus] + ([cache] if cache else [])
+        _check_output(results_path, inputs, force, option="--out-dir: results file", retry=retry)
         stats = build_to_file(
             corpus, suite_path, families=families, text_column=text_column, label_column=label_column,
             text_field=text_field, label_field=label_field, encoding=encoding, seed=seed, workers=workers,
             spacy_model=spacy_model, lexicon=lexicon, max_per_rule=1, recheck=False, force=force,
+            output_option="--out-dir: suite file", retry=retry,
         )
         from pairflip.report.build_summary import render_build_stats
 
@@ -485,12 +550,29 @@ def demo(
     out_dir: Optional[Path] = typer.Option(None, "--out-dir", help="Keep the demo's suite, models and results here (default: a temporary folder)."),
     seed: int = typer.Option(0, "--seed"),
     examples: int = typer.Option(2, "--examples"),
+    force: bool = typer.Option(False, "--force", help="Overwrite the demo's files in --out-dir."),
 ) -> None:
     """The whole job on the bundled outdoor-gear reviews: train three models, build, score, show."""
     with _guard():
-        from pairflip.demo.run import run_demo
+        from pairflip.demo.run import demo_files, run_demo
 
+        if examples < 0:
+            raise PairflipError(f"--examples {examples}: expected 0 or more examples per family")
+        if out_dir is not None:
+            _make_out_dir(out_dir)
+            for name in demo_files():
+                _check_output(out_dir / name, [], force, option="--out-dir: demo file", retry=" or choose another --out-dir")
         run_demo(out_dir=out_dir, seed=seed, examples=examples, console=_out_console(), log=_err_console())
+
+
+def _make_out_dir(out_dir: Path) -> None:
+    """Create ``--out-dir`` (and its parents) or say why it cannot be, naming the option."""
+    if out_dir.exists() and not out_dir.is_dir():
+        raise PairflipError(f"--out-dir {out_dir}: is a file; expected a folder (it is created when missing)")
+    try:
+        out_dir.mkdir(parents=True, exist_ok=True)
+    except OSError as err:
+        raise PairflipError(f"--out-dir {out_dir}: cannot create the folder ({err.strerror or err})") from None
 
 
 def main(argv: list[str] | None = None) -> None:

@@ -10,10 +10,12 @@ from __future__ import annotations
 
 import codecs
 import csv
+import errno
 import datetime as _dt
 import hashlib
 import io
 import json
+import math
 import os
 import sys
 import tempfile
@@ -79,32 +81,67 @@ def atomic_writer(path: str | os.PathLike[str], *, force: bool = True) -> Iterat
     The finished file gets the usual permissions (0666 less the umask), not the temp file's 0600.
     """
     target = Path(path)
-    if target.is_dir():
-        raise PairflipError(f"{target}: is a folder; expected a file path to write")
-    if not force and target.exists():
+    if not force and target.exists() and not target.is_dir():
         raise PairflipError(f"{target}: already exists; pass --force to overwrite it")
-    directory = target.parent if str(target.parent) else Path(".")
-    if not directory.is_dir():
-        raise PairflipError(f"{target}: folder {directory} does not exist")
-    try:
-        fd, tmp = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".tmp", dir=directory)
-    except PermissionError:
-        raise PairflipError(f"{target}: cannot write in folder {directory} (permission denied)") from None
+    fd, tmp = _temp_beside(target, "", ".tmp")
     try:
         with os.fdopen(fd, "w", encoding="utf-8", newline="\n") as fh:
-            yield fh
-            fh.flush()
-            os.fsync(fh.fileno())
+            try:
+                yield fh
+                fh.flush()
+                os.fsync(fh.fileno())
+            except OSError as err:
+                if err.errno not in _WRITE_ERRNOS:  # from the caller's own work, not from writing
+                    raise
+                raise PairflipError(f"{target}: writing failed ({_os_reason(err)}); the file was not changed") from None
         umask = os.umask(0)
         os.umask(umask)
         os.chmod(tmp, 0o666 & ~umask)
-        os.replace(tmp, target)
+        try:
+            os.replace(tmp, target)
+        except OSError as err:
+            raise PairflipError(f"{target}: cannot put the finished file in place ({_os_reason(err)})") from None
     except BaseException:
         try:
             os.unlink(tmp)
-        except FileNotFoundError:
+        except OSError:
             pass
         raise
+
+
+_WRITE_ERRNOS = {errno.ENOSPC, errno.EDQUOT, errno.EIO, errno.EROFS, errno.EFBIG}
+
+
+def _temp_beside(target: Path, label: str, suffix: str) -> tuple[int, str]:
+    """A new temp file in ``target``'s folder, or a PairflipError that names the target (after
+    ``label``, the option that gave it) and says why: a folder, no such folder, or no new file."""
+    name = f"{label} {target}" if label else str(target)
+    if target.is_dir():
+        raise PairflipError(f"{name}: is a folder; expected the path of the file to write")
+    directory = target.parent if str(target.parent) else Path(".")
+    if not directory.is_dir():
+        raise PairflipError(f"{name}: folder {directory} does not exist")
+    try:
+        return tempfile.mkstemp(prefix=f".{target.name}.", suffix=suffix, dir=directory)
+    except OSError as err:
+        raise PairflipError(f"{name}: cannot write in folder {directory} ({_os_reason(err)})") from None
+
+
+def _os_reason(err: OSError) -> str:
+    """``no space left on device`` from an OSError, without its repr noise."""
+    reason = err.strerror or str(err) or type(err).__name__
+    return reason[:1].lower() + reason[1:]
+
+
+def check_writable(target: str | os.PathLike[str], option: str) -> None:
+    """Fail now, before any work, when ``target`` could not be written later.
+
+    Creates and removes a temporary file in the target's folder: permission bits alone say
+    nothing for root, and a read-only file system or a missing folder shows up the same way.
+    """
+    fd, tmp = _temp_beside(Path(target), option, ".probe")
+    os.close(fd)
+    os.unlink(tmp)
 
 
 def _dump(obj: dict[str, Any]) -> str:
@@ -141,14 +178,27 @@ def _check_decodes(path: Path, encoding: str, shown: str) -> None:
     """Decode the whole file in chunks (never all of it in memory); on failure name the line and
     the byte offset of the first byte that does not decode."""
     decoder = codecs.getincrementaldecoder(encoding)(errors="strict")
+    # UTF-16/32 text is full of NUL bytes; in any byte-per-character or UTF-8 text a NUL means
+    # the file was written in a wide encoding (most often UTF-16 without its byte-order mark).
+    wide_ok = "16" in encoding or "32" in encoding
     offset = 0  # bytes read from the file before the current chunk
     with open(path, "rb") as fh:
         head = fh.read(4)
         fh.seek(0)
+        if head.startswith((codecs.BOM_UTF16_LE, codecs.BOM_UTF16_BE)):
+            wide_ok = True  # the decoder stops on the byte-order mark with its own hint
         while True:
             chunk = fh.read(1 << 20)
             final = not chunk
             pending = len(decoder.getstate()[0])  # bytes of a split character kept from the last chunk
+            nul = chunk.find(b"\x00") if wide_ok is False else -1
+            if nul >= 0:
+                at = offset + nul
+                line = _count_newlines(path, at) + 1
+                raise PairflipError(
+                    f"{path}:{line}: NUL byte at byte offset {at}, which no {shown} text holds: the file looks "
+                    f"like UTF-16 without a byte-order mark; pass --encoding utf-16-le (or utf-16-be)"
+                ) from None
             try:
                 decoder.decode(chunk, final=final)
             except UnicodeDecodeError as err:
@@ -208,6 +258,10 @@ def read_corpus(
     """
     p = Path(path)
     suffix = p.suffix.lower()
+    if not p.exists():
+        raise PairflipError(f"{p}: no such file")
+    if p.is_dir():
+        raise PairflipError(f"{p}: is a folder, expected a corpus file ({', '.join(CORPUS_SUFFIXES)})")
     if suffix not in CORPUS_SUFFIXES:
         raise PairflipError(
             f"{p}: unknown corpus type {suffix or '(no suffix)'!r}; expected one of {', '.join(CORPUS_SUFFIXES)}"
@@ -276,6 +330,13 @@ def _read_csv(p: Path, fh: TextIO, delimiter: str, text_column: str, label_colum
         raise PairflipError(f"{p}:1: cannot read the header row ({err}); expected column names") from None
     header = [h.strip() for h in header]
     sep = "tab" if delimiter == "\t" else "comma"
+    dup = next((h for i, h in enumerate(header) if h in header[:i]), None)
+    if dup is not None:
+        where = [i + 1 for i, h in enumerate(header) if h == dup]
+        raise PairflipError(
+            f"{p}:1: column name {dup!r} appears {len(where)} times in the header (columns "
+            f"{', '.join(map(str, where))}); expected every column name once"
+        )
     for name, opt in ((text_column, "--text-column"), (label_column, "--label-column")):
         if name is not None and name not in header:
             more = ""
@@ -303,6 +364,11 @@ def _read_csv(p: Path, fh: TextIO, delimiter: str, text_column: str, label_colum
             ) from None
         if not row or all(not c.strip() for c in row):
             continue
+        if len(row) > len(header):
+            raise PairflipError(
+                f"{p}:{start}: the row has {len(row)} fields but the header has {len(header)}; "
+                f"a field holding the separator ({sep}) must be quoted, \"like, this\""
+            )
         if len(row) <= ti:
             raise PairflipError(
                 f"{p}:{start}: the row has {len(row)} field{'s' if len(row) != 1 else ''}, "
@@ -354,10 +420,30 @@ def _read_jsonl(p: Path, fh: TextIO, text_field: str, label_field: str | None) -
                     f"{p}:{lineno}: no field {label_field!r} (or it is null); the fields are {_columns(list(obj))}; "
                     f"choose one with --label-field"
                 )
-            label = str(obj[label_field])
+            raw = obj[label_field]
+            if isinstance(raw, bool) or not isinstance(raw, (str, int, float)):
+                raise PairflipError(
+                    f"{p}:{lineno}: field {label_field!r} is {_json_type(raw)} {_short(raw)}; "
+                    f"expected a label: a string or a number"
+                )
+            label = str(raw)
         text = text.strip()
+        for name, value in ((text_field, text), (label_field, label)):
+            if value is not None and not _encodes(value):
+                raise PairflipError(
+                    f"{p}:{lineno}: field {name!r} holds a lone surrogate escape (\\ud800-\\udfff without "
+                    f"its pair), which is not a character; expected valid Unicode text"
+                )
         if text:
             yield SourceText(text=text, label=label, where=f"{p}:{lineno}")
+
+
+def _encodes(text: str) -> bool:
+    try:
+        text.encode("utf-8")
+    except UnicodeEncodeError:
+        return False
+    return True
 
 
 # --------------------------------------------------------------------------- suite and results files
@@ -506,7 +592,23 @@ def _check_verdict(path: Path, lineno: int, obj: dict[str, Any]) -> None:
     _need(path, lineno, obj, "verdict", f"one of {', '.join(VERDICTS)}", lambda x: x in VERDICTS)
     for key in ("source_score", "variant_score"):
         if obj.get(key) is not None:
-            _need(path, lineno, obj, key, "a number", lambda x: isinstance(x, (int, float)) and not isinstance(x, bool))
+            _need(path, lineno, obj, key, "a polarity score: a finite number from -1 to 1", _is_polarity_score)
+
+
+def _is_polarity_score(x: Any) -> bool:
+    # A polarity score is an expected polarity (sum of p(label) x polarity): always in [-1, 1].
+    # The tolerance covers the rounding of a probability row that sums to 1 + a few ulps.
+    return isinstance(x, (int, float)) and not isinstance(x, bool) and math.isfinite(x) and -1 - 1e-9 <= x <= 1 + 1e-9
+
+
+def _check_unique(path: Path, lineno: int, pair_id: str, seen: dict[str, int], what: str) -> None:
+    """Each pair id once per file: a repeated id (or a duplicated line) would be counted twice."""
+    first = seen.setdefault(pair_id, lineno)
+    if first != lineno:
+        raise PairflipError(
+            f"{path}:{lineno}: {what} id {pair_id!r} already appears on line {first}; expected each pair id once "
+            f"(a duplicated line, or two files joined by hand?)"
+        )
 
 
 def iter_suite(path: str | os.PathLike[str]) -> tuple[dict[str, Any], Iterator[Pair]]:
@@ -519,8 +621,10 @@ def iter_suite(path: str | os.PathLike[str]) -> tuple[dict[str, Any], Iterator[P
         # rule and expectation: share those strings instead of holding a copy per pair (less
         # memory, and scoring's lookups by text then find the same object).
         prev: Pair | None = None
+        seen: dict[str, int] = {}
         for lineno, obj in recs:
             _check_pair(p, lineno, obj)
+            _check_unique(p, lineno, obj["id"], seen, "pair")
             try:
                 pair = Pair.from_dict(obj)
                 pair.family, pair.rule, pair.should = sys.intern(pair.family), sys.intern(pair.rule), sys.intern(pair.should)
@@ -565,8 +669,10 @@ def read_results(path: str | os.PathLike[str]) -> Results:
     p = Path(path)
     header, recs = _read_jsonl_records(p, RESULTS_KIND)
     verdicts = []
+    seen: dict[str, int] = {}
     for lineno, obj in recs:
         _check_verdict(p, lineno, obj)
+        _check_unique(p, lineno, obj["id"], seen, "result")
         try:
             verdicts.append(Verdict.from_dict(obj))
         except (KeyError, TypeError, ValueError) as err:

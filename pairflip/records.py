@@ -21,7 +21,10 @@ class PairflipError(Exception):
     """A problem with the user's input: the CLI prints the message and exits with code 2.
 
     The message must say what was wrong and where (file, line, field), and what was expected.
+    The CLI prints it on one line unless ``keep_lines`` is set (a limit with its caret line).
     """
+
+    keep_lines = False
 
 
 class Interrupted(KeyboardInterrupt):

@@ -62,6 +62,8 @@ TOML_KEYS = ("limits", "on", "alpha")
 class LimitSyntaxError(PairflipError):
     """A malformed limit: the message echoes it with a caret under the bad token (three lines)."""
 
+    keep_lines = True
+
     def __init__(self, text: str, column: int, what: str) -> None:
         self.text = text
         self.column = column  # 1-based
@@ -285,8 +287,11 @@ def default_limits_file(folder: str | Path = ".") -> Path | None:
         return None
     try:
         data = _load_toml(p)
-    except PairflipError:
-        return None
+    except PairflipError as err:
+        # A broken pyproject.toml must not read as "no limits given": the limits may be in it.
+        raise PairflipError(
+            f"./{err} (gate reads [tool.pairflip.gate] from ./pyproject.toml when no --limit or --limits is given)"
+        ) from None
     tool = data.get("tool")
     if isinstance(tool, dict) and isinstance(tool.get("pairflip"), dict) and "gate" in tool["pairflip"]:
         return p

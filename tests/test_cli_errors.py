@@ -56,16 +56,17 @@ def corpus(tmp_path) -> Path:
     return p
 
 
-def _pair() -> Pair:
-    src = "The tent is roomy."
-    return Pair(source=src, variant="The tent is not roomy.", family="negation", rule="negation/copula",
-                should="flip", edits=[Edit(12, 12, "not ")])
+def _pair(noun: str = "tent") -> Pair:
+    src = f"The {noun} is roomy."
+    at = len(f"The {noun} is ")
+    return Pair(source=src, variant=f"The {noun} is not roomy.", family="negation", rule="negation/copula",
+                should="flip", edits=[Edit(at, at, "not ")])
 
 
 @pytest.fixture()
 def suite_file(tmp_path) -> Path:
     p = tmp_path / "suite.jsonl"
-    write_suite(Suite(header={"generator": {"name": "pairflip"}}, pairs=[_pair(), _pair()]), p)
+    write_suite(Suite(header={"generator": {"name": "pairflip"}}, pairs=[_pair(), _pair("yurt")]), p)
     return p
 
 
@@ -320,3 +321,206 @@ def test_suite_with_a_bom_still_reads(tmp_path, capsys, suite_file):
 
     suite_file.write_bytes(b"\xef\xbb\xbf" + suite_file.read_bytes())
     assert len(read_suite(suite_file).pairs) == 2
+
+
+# --------------------------------------------------------------------------- issue 12: nothing lost
+# Each test below failed before the fix it names (run against the code of 04cd824).
+
+
+def _unwritable_folder(tmp_path: Path) -> Path:
+    """A folder that exists but takes no new file, for root too (permission bits do not stop root)."""
+    import os
+    import tempfile
+
+    if os.geteuid() != 0:
+        d = tmp_path / "locked"
+        d.mkdir()
+        d.chmod(0o500)
+        return d
+    try:  # sysfs refuses new files even to root (EACCES)
+        fd, name = tempfile.mkstemp(dir="/sys")
+    except OSError:
+        return Path("/sys")
+    os.close(fd)
+    os.unlink(name)
+    pytest.skip("no folder on this machine refuses root a new file")
+
+
+@pytest.mark.parametrize("option", ["--json", "--html", "--markdown", "--junit"])
+def test_show_refuses_to_export_onto_its_input(results_file, capsys, option):
+    before = results_file.read_bytes()
+    code, _, err = run(["show", results_file, option, results_file], capsys)
+    assert_clean_failure(code, err, None, option, "also an input")
+    assert results_file.read_bytes() == before
+
+
+def test_show_refuses_to_overwrite_an_export_without_force(results_file, tmp_path, capsys):
+    out = tmp_path / "summary.json"
+    out.write_text("keep me", encoding="utf-8")
+    code, _, err = run(["show", results_file, "--json", out], capsys)
+    assert_clean_failure(code, err, None, "--json", "already exists", "--force")
+    assert out.read_text(encoding="utf-8") == "keep me"
+    code, _, err = run(["show", results_file, "--json", out, "--force"], capsys)
+    assert code == 0, err
+    assert json.loads(out.read_text(encoding="utf-8"))["version"] == 1
+
+
+def test_show_refuses_two_exports_to_one_path(results_file, tmp_path, capsys):
+    out = tmp_path / "report.txt"
+    code, _, err = run(["show", results_file, "--json", out, "--markdown", out], capsys)
+    assert_clean_failure(code, err, out, "--markdown", "same file as --json")
+
+
+def test_compare_refuses_to_write_onto_an_input(results_file, capsys):
+    before = results_file.read_bytes()
+    code, _, err = run(["compare", results_file, results_file, "--json", results_file], capsys)
+    assert_clean_failure(code, err, None, "--json", "also an input")
+    assert results_file.read_bytes() == before
+
+
+def test_compare_refuses_to_overwrite_without_force(results_file, tmp_path, capsys):
+    out = tmp_path / "comparison.json"
+    out.write_text("keep me", encoding="utf-8")
+    code, _, err = run(["compare", results_file, results_file, "--json", out], capsys)
+    assert_clean_failure(code, err, None, "--json", "already exists", "--force")
+    assert out.read_text(encoding="utf-8") == "keep me"
+
+
+def _dup_suite(suite_file: Path) -> Path:
+    lines = suite_file.read_text(encoding="utf-8").splitlines()
+    suite_file.write_text("\n".join(lines + [lines[1]]) + "\n", encoding="utf-8")
+    return suite_file
+
+
+def test_score_rejects_a_suite_with_a_repeated_pair_id(suite_file, tmp_path, capsys, model_spec):
+    _dup_suite(suite_file)
+    out = tmp_path / "results.jsonl"
+    code, _, err = run(["score", suite_file, "--model", model_spec, "-o", out], capsys)
+    assert_clean_failure(code, err, out, f"{suite_file}:4", "already appears on line 2")
+
+
+@pytest.mark.parametrize("command", [["show"], ["gate", "--limit", "negation.violation <= 1"], ["compare", None]])
+def test_show_gate_compare_reject_a_results_file_with_a_repeated_id(results_file, tmp_path, capsys, command):
+    lines = results_file.read_text(encoding="utf-8").splitlines()
+    dup = tmp_path / "dup.jsonl"
+    dup.write_text("\n".join(lines + [lines[1]]) + "\n", encoding="utf-8")
+    args = [command[0], dup] + [x if x is not None else dup for x in command[1:]]
+    code, _, err = run(args, capsys)
+    assert_clean_failure(code, err, None, f"{dup}:3", "already appears on line 2")
+
+
+@pytest.mark.parametrize("how", ["sys.exit(0)", "sys.exit('model crashed: no GPU')", "raise KeyboardInterrupt"])
+def test_audit_with_limits_fails_when_the_model_exits(corpus, tmp_path, capsys, monkeypatch, how):
+    module = f"fe_exiting_model_{abs(hash(how))}"  # one module per case: imports are cached
+    (tmp_path / f"{module}.py").write_text(f"import sys\ndef predict(texts):\n    {how}\n", encoding="utf-8")
+    monkeypatch.syspath_prepend(str(tmp_path))
+    out = tmp_path / "audit"
+    code, _, err = run(["audit", corpus, "--model", f"{module}:predict", "--out-dir", out,
+                        "--limit", "negation.violation <= 0.5"], capsys)
+    assert code == 2, err
+    assert "Traceback" not in err
+    if "crashed" in how:
+        assert "model crashed: no GPU" in err
+    assert not (out / "results.jsonl").exists()
+
+
+def test_score_checks_the_output_folder_before_predicting(suite_file, tmp_path, capsys, monkeypatch):
+    calls = tmp_path / "calls.txt"
+    (tmp_path / "fe_counting_model.py").write_text(
+        f"def predict(texts):\n    open({str(calls)!r}, 'a').write('called\\n')\n    return ['positive'] * len(texts)\n",
+        encoding="utf-8",
+    )
+    monkeypatch.syspath_prepend(str(tmp_path))
+    locked = _unwritable_folder(tmp_path)
+    out = locked / "results.jsonl"
+    code, _, err = run(["score", suite_file, "--model", "fe_counting_model:predict", "-o", out], capsys)
+    assert_clean_failure(code, err, None, f"-o {out}", "cannot write in folder")
+    assert not calls.exists(), "the model ran although the results could never be written"
+
+
+def test_build_checks_the_output_folder_before_parsing(corpus, tmp_path, capsys):
+    out = _unwritable_folder(tmp_path) / "suite.jsonl"
+    code, _, err = run(["build", corpus, "-o", out], capsys)
+    assert_clean_failure(code, err, None, f"-o {out}", "cannot write in folder")
+
+
+def test_show_checks_export_folders_before_reading(results_file, tmp_path, capsys):
+    out = _unwritable_folder(tmp_path) / "report.html"
+    code, _, err = run(["show", results_file, "--html", out], capsys)
+    assert_clean_failure(code, err, None, f"--html {out}", "cannot write in folder")
+
+
+def test_audit_and_demo_name_an_out_dir_they_cannot_create(corpus, tmp_path, capsys, model_spec):
+    out = _unwritable_folder(tmp_path) / "new"
+    code, _, err = run(["audit", corpus, "--model", model_spec, "--out-dir", out], capsys)
+    assert_clean_failure(code, err, None, f"--out-dir {out}", "cannot create the folder")
+    code, _, err = run(["demo", "--out-dir", out], capsys)
+    assert_clean_failure(code, err, None, f"--out-dir {out}", "cannot create the folder")
+
+
+def test_rerun_of_audit_on_its_out_dir_names_out_dir_not_o(corpus, tmp_path, capsys, model_spec):
+    out = tmp_path / "audit"
+    code, _, err = run(["audit", corpus, "--model", model_spec, "--out-dir", out], capsys)
+    assert code == 0, err
+    before = (out / "results.jsonl").read_bytes()
+    code, _, err = run(["audit", corpus, "--model", model_spec, "--out-dir", out], capsys)
+    line = assert_clean_failure(code, err, None, "--out-dir", "already exists", "--force", "another --out-dir")
+    assert "-o " not in line
+    assert (out / "results.jsonl").read_bytes() == before
+    code, _, err = run(["audit", corpus, "--model", model_spec, "--out-dir", out, "--force"], capsys)
+    assert code == 0, err
+
+
+def test_a_full_disk_is_named_with_the_path_and_leaves_nothing(results_file, tmp_path, capsys, monkeypatch):
+    import errno
+    import os
+
+    real_fsync = os.fsync
+
+    def full(fd):  # what a full disk does to the last flush of a file
+        raise OSError(errno.ENOSPC, os.strerror(errno.ENOSPC))
+
+    monkeypatch.setattr(os, "fsync", full)
+    out = tmp_path / "summary.json"
+    code, _, err = run(["show", results_file, "--json", out], capsys)
+    monkeypatch.setattr(os, "fsync", real_fsync)
+    assert_clean_failure(code, err, out, str(out), "no space left on device")
+
+
+@pytest.mark.parametrize("args, needle", [
+    (["build", "{corpus}", "-o", "{out}", "--workers", "0"], "--workers 0"),
+    (["build", "{corpus}", "-o", "{out}", "--workers", "-3"], "--workers -3"),
+    (["build", "{corpus}", "-o", "{out}", "--max-per-rule", "0"], "--max-per-rule 0"),
+    (["show", "{results}", "--examples", "-1"], "--examples -1"),
+    (["compare", "{results}", "{results}", "--examples", "-1"], "--examples -1"),
+])
+def test_counts_below_their_minimum_are_refused(corpus, results_file, tmp_path, capsys, args, needle):
+    out = tmp_path / "suite.jsonl"
+    filled = [a.format(corpus=corpus, out=out, results=results_file) for a in args]
+    code, _, err = run(filled, capsys)
+    assert_clean_failure(code, err, out, needle, "expected")
+
+
+def test_show_limit_keeps_the_caret_under_the_bad_token(results_file, capsys):
+    code, _, err = run(["show", results_file, "--limit", "negation.violation <== 0.1"], capsys)
+    assert code == 2
+    lines = err.splitlines()
+    assert len(lines) == 3, err
+    caret = lines[2].index("^")
+    assert lines[1][caret] == "=", err  # the caret stands under the stray "="
+
+
+def test_gate_names_a_malformed_pyproject_instead_of_no_limits(results_file, tmp_path, capsys, monkeypatch):
+    (tmp_path / "pyproject.toml").write_text("[tool.pairflip.gate\nlimits = [\n", encoding="utf-8")
+    monkeypatch.chdir(tmp_path)
+    code, _, err = run(["gate", results_file], capsys)
+    line = assert_clean_failure(code, err, None, "pyproject.toml", "not valid TOML")
+    assert "no limits" not in line
+
+
+def test_score_refuses_the_suite_as_its_cache(suite_file, tmp_path, capsys, model_spec):
+    before = suite_file.read_bytes()
+    out = tmp_path / "results.jsonl"
+    code, _, err = run(["score", suite_file, "--model", model_spec, "-o", out, "--cache", suite_file], capsys)
+    assert_clean_failure(code, err, out, f"--cache {suite_file}", "suite file itself")
+    assert suite_file.read_bytes() == before

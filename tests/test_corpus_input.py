@@ -416,3 +416,61 @@ def test_hundred_thousand_character_texts(tmp_path, capsys):
     assert code == 0, err
     sources, _, _ = _summary(err)
     assert sources == 3
+
+
+# --------------------------------------------------------------------------- issue 12: corpus faults
+# Each of these built a suite (exit 0) or raised a bare exception before the fix (code of 04cd824).
+
+
+def test_csv_row_with_more_fields_than_the_header(tmp_path, capsys):
+    # An unquoted comma in the text: before, the tail of the text became the gold label.
+    corpus = write(tmp_path / "r.csv", "text,label\nThe tent is roomy,positive\nThe stove is loud, but cheap,negative\n")
+    out = tmp_path / "suite.jsonl"
+    code, _, err = run(["build", corpus, "-o", out, "--label-column", "label"], capsys)
+    assert_clean_failure(code, err, out, f"{corpus}:3", "3 fields", "header has 2", "quoted")
+
+
+def test_csv_duplicated_column_name(tmp_path, capsys):
+    corpus = write(tmp_path / "r.csv", "text,label,text\nThe tent is roomy,positive,x\n")
+    out = tmp_path / "suite.jsonl"
+    code, _, err = run(["build", corpus, "-o", out], capsys)
+    assert_clean_failure(code, err, out, f"{corpus}:1", "'text' appears 2 times", "columns 1, 3")
+
+
+def test_folder_given_as_corpus(tmp_path, capsys):
+    folder = tmp_path / "reviews"
+    folder.mkdir()
+    out = tmp_path / "suite.jsonl"
+    code, _, err = run(["build", folder, "-o", out], capsys)
+    line = assert_clean_failure(code, err, out, str(folder), "is a folder")
+    assert "unknown corpus type" not in line
+
+
+@pytest.mark.parametrize("codec", ["utf-16-le", "utf-16-be"])
+def test_utf16_without_a_byte_order_mark(tmp_path, capsys, codec):
+    # ASCII text in UTF-16 without a BOM is valid UTF-8 (every other byte NUL): it was read as text
+    # full of NUL characters.
+    corpus = write(tmp_path / "r.txt", "The tent is roomy.\nThe stove is loud.\n".encode(codec))
+    out = tmp_path / "suite.jsonl"
+    code, _, err = run(["build", corpus, "-o", out], capsys)
+    assert_clean_failure(code, err, out, f"{corpus}:1", "NUL byte", "--encoding utf-16-le")
+    code, _, err = run(["build", corpus, "-o", out, "--encoding", codec], capsys)
+    assert code == 0, err
+
+
+@pytest.mark.parametrize("label, kind", [('{"stars": 5}', "an object"), ("true", "a boolean"), ("[1]", "an array")])
+def test_jsonl_label_that_is_not_a_string_or_number(tmp_path, capsys, label, kind):
+    corpus = write(tmp_path / "r.jsonl", '{"text": "The tent is roomy.", "label": "positive"}\n'
+                                         f'{{"text": "The stove is loud.", "label": {label}}}\n')
+    out = tmp_path / "suite.jsonl"
+    code, _, err = run(["build", corpus, "-o", out, "--label-field", "label"], capsys)
+    assert_clean_failure(code, err, out, f"{corpus}:2", "'label'", kind, "a string or a number")
+
+
+def test_jsonl_lone_surrogate(tmp_path, capsys):
+    # A JSON \ud83d escape without its low half decodes to a lone surrogate, which UTF-8 cannot
+    # encode (RFC 8259 section 8.2 allows such strings but calls them unpredictable to receivers).
+    corpus = write(tmp_path / "r.jsonl", '{"text": "The tent is roomy."}\n{"text": "Great stove \\ud83d!"}\n')
+    out = tmp_path / "suite.jsonl"
+    code, _, err = run(["build", corpus, "-o", out], capsys)
+    assert_clean_failure(code, err, out, f"{corpus}:2", "'text'", "lone surrogate")

@@ -5,6 +5,7 @@ from __future__ import annotations
 import codecs
 import json
 import os
+import re
 import stat
 from pathlib import Path
 
@@ -221,7 +222,7 @@ def test_results_score_must_be_a_number(tmp_path):
     rec = json.loads(lines[1])
     rec["source_score"] = "high"
     p.write_text(lines[0] + "\n" + json.dumps(rec) + "\n", encoding="utf-8")
-    with pytest.raises(PairflipError, match=r"r\.jsonl:2: field 'source_score' is 'high'; expected a number"):
+    with pytest.raises(PairflipError, match=r"r\.jsonl:2: field 'source_score' is 'high'; expected a polarity score"):
         read_results(p)
 
 
@@ -236,4 +237,31 @@ def test_truncation_only_claimed_for_the_last_line(tmp_path):
         read_suite(p)
     p.write_text(data.split("\n")[0][:30], encoding="utf-8")  # cut inside the header
     with pytest.raises(PairflipError, match=r"s\.jsonl:1: line 1 is not JSON .*truncated"):
+        read_suite(p)
+
+
+# --------------------------------------------------------------------------- issue 12: reading results
+# Both were accepted before the fix (code of 04cd824).
+
+
+@pytest.mark.parametrize("raw, shown", [("NaN", "nan"), ("1e300", "1e+300"), ("-Infinity", "-inf"), ("1.5", "1.5")])
+def test_results_score_must_be_a_finite_polarity_score(tmp_path, raw, shown):
+    # A polarity score is the expected polarity sum(p(label) x polarity) over polarities in
+    # {-1, 0, 1} (DESIGN.md, Expectations): it can only lie in [-1, 1].
+    p = tmp_path / "r.jsonl"
+    v = Verdict(id="a1", source_pred="positive", variant_pred="negative", verdict="ok", source_score=0.5,
+                variant_score=-0.5, family="negation", rule="negation/copula", should="flip")
+    write_results(Results(header={}, verdicts=[v]), p)
+    head, rec = p.read_text(encoding="utf-8").splitlines()
+    p.write_text(head + "\n" + rec.replace('"variant_score": -0.5', f'"variant_score": {raw}') + "\n", encoding="utf-8")
+    with pytest.raises(PairflipError, match=rf"r\.jsonl:2: field 'variant_score' is {re.escape(shown)}; expected a polarity score"):
+        read_results(p)
+
+
+def test_suite_and_results_reject_a_repeated_id(tmp_path):
+    pairs = [Pair(source="The tent is roomy.", variant="The tent is not roomy.", family="negation",
+                  rule="negation/copula", should="flip", edits=[Edit(12, 12, "not ")])]
+    p = tmp_path / "s.jsonl"
+    write_suite(Suite(header={}, pairs=pairs * 2), p)
+    with pytest.raises(PairflipError, match=r"s\.jsonl:3: pair id '\w+' already appears on line 2"):
         read_suite(p)
