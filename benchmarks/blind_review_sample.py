@@ -1,15 +1,22 @@
-"""Draw the blind-review sample: 100 random pairs built from real text nobody on the project wrote.
+"""Draw a blind-review sample of pairs from text nobody on the project tuned the rules on.
 
-Source text: the human-rated product-review and tweet snippets in the vaderSentiment 3.3.2 sdist
-(Hutto & Gilbert 2014), fetched with pip (see tests/helpers/external_data.py). Every family runs;
-``reorder/shuffle`` is left out (it is ungrammatical on purpose and carries no expectation).
+Source text (``--source``): ``vader`` (default), the human-rated product-review snippets in the
+vaderSentiment 3.3.2 sdist (Hutto & Gilbert 2014), fetched with pip (see
+tests/helpers/external_data.py), split into sentences; ``vader-all`` adds its tweets (rounds 1-6
+used product and tweet snippets whole); or a path to a corpus file pairflip reads (e.g.
+``benchmarks/coverage/larder_texts.jsonl``), built at sentence unit. ``reorder/shuffle`` is left
+out (ungrammatical on purpose, no expectation).
 
-Writes two files into benchmarks/blind_review/:
-- ``sheet.jsonl``: what judges see: an item number, the two texts, and the expectation in plain
-  words ("the second text should express the opposite opinion", ...), never the rule's name;
+``--per-family negation=30,double-negation=20,...`` draws that many pairs of each family (a
+family with fewer pairs gives all it has); without it, ``--n`` pairs at random.
+
+Writes two files into ``--out`` (default benchmarks/blind_review/):
+- ``sheet.jsonl``: what judges see: an item number, the two texts, and the expectation in the
+  plain words of judge_brief.md (version 2), never the rule's name; items shuffled;
 - ``key.jsonl``: item number -> pair id, family, rule, should (kept apart from the judges).
 
-    python benchmarks/blind_review_sample.py [--seed 7] [--n 100]
+    python benchmarks/blind_review_sample.py --seed 8 --source benchmarks/coverage/larder_texts.jsonl \
+        --per-family negation=30,double-negation=20,intensifier=20,reorder=20 --out DIR
 """
 
 from __future__ import annotations
@@ -19,37 +26,61 @@ import json
 import random
 from pathlib import Path
 
-from _corpus import real_snippets
-
+# The words of judge_brief.md (version 2): each expectation as the scoring checks it.
 PLAIN = {
-    "flip": "The second text should express the OPPOSITE opinion to the first (positive <-> negative).",
-    "hold": "The second text should express the SAME opinion, equally strong, as the first.",
-    "strengthen": "The second text should express the same opinion as the first, but MORE strongly.",
-    "weaken": "The second text should express the same opinion as the first, but LESS strongly (or become neutral); it must not reverse it.",
+    "flip": "NOT THE SAME opinion: the second text should not carry the first text's opinion (opposite, or neutral).",
+    "hold": "the SAME opinion: both texts should get the same label (positive, negative or neutral).",
+    "strengthen": "the same opinion, NOT WEAKER: same direction as the first, at least as strong.",
+    "weaken": "the same opinion, NOT STRONGER: weaker, equal or neutral, but not the opposite and not stronger.",
 }
 
 OUT = Path(__file__).resolve().parent / "blind_review"
+
+
+def _texts(source: str) -> list[str]:
+    from _corpus import real_snippets, real_texts
+
+    if source == "vader":
+        return real_texts(("product",))
+    if source == "vader-all":
+        return real_snippets(("product", "tweets"))
+    from pairflip.files import read_corpus
+
+    return [t.text for t in read_corpus(source)]
 
 
 def main() -> None:
     ap = argparse.ArgumentParser()
     ap.add_argument("--seed", type=int, default=7)
     ap.add_argument("--n", type=int, default=100)
+    ap.add_argument("--source", default="vader")
+    ap.add_argument("--per-family", default="")
+    ap.add_argument("--out", type=Path, default=OUT)
     args = ap.parse_args()
 
     import pairflip
 
-    texts = real_snippets(("product", "tweets"))
-    suite = pairflip.build_suite(texts, seed=0)
+    texts = _texts(args.source)
+    kw = {"unit": "sentence"} if "unit" in pairflip.build_suite.__code__.co_varnames else {}
+    suite = pairflip.build_suite(texts, seed=0, **kw)
     pool = [p for p in suite if p.should in PLAIN]
     rng = random.Random(args.seed)
-    sample = rng.sample(pool, args.n)
-    OUT.mkdir(exist_ok=True)
-    with open(OUT / "sheet.jsonl", "w", encoding="utf-8") as sheet, open(OUT / "key.jsonl", "w", encoding="utf-8") as key:
+    if args.per_family:
+        quota = {k: int(v) for k, v in (x.split("=") for x in args.per_family.split(","))}
+        sample = []
+        for fam, k in quota.items():
+            of_family = [p for p in pool if p.family == fam]
+            sample += rng.sample(of_family, min(k, len(of_family)))
+        rng.shuffle(sample)
+    else:
+        sample = rng.sample(pool, min(args.n, len(pool)))
+    args.out.mkdir(parents=True, exist_ok=True)
+    with open(args.out / "sheet.jsonl", "w", encoding="utf-8") as sheet, open(args.out / "key.jsonl", "w", encoding="utf-8") as key:
         for i, p in enumerate(sample, 1):
             sheet.write(json.dumps({"item": i, "first": p.source, "second": p.variant, "expectation": PLAIN[p.should]}, ensure_ascii=False) + "\n")
             key.write(json.dumps({"item": i, "id": p.id, "family": p.family, "rule": p.rule, "should": p.should}) + "\n")
-    print(f"pool: {len(pool)} pairs with an expectation from {len(texts)} snippets; wrote {args.n} items to {OUT}")
+    counts = {f: sum(p.family == f for p in sample) for f in sorted({p.family for p in sample})}
+    print(f"pool: {len(pool)} pairs with an expectation from {len(texts)} texts; wrote {len(sample)} items {counts} to {args.out}")
 
 
 if __name__ == "__main__":

@@ -5,12 +5,13 @@ Each judge file (benchmarks/blind_review/judge-*.jsonl) holds one line per item:
 A pair passes when it is grammatical AND its expectation is right. Prints each judge's pass rate
 (with a 95 % Wilson interval), the rate of pairs both judges pass, and per-family figures.
 
-    python benchmarks/blind_review_score.py
+    python benchmarks/blind_review_score.py [FOLDER]      (default: benchmarks/blind_review/)
 """
 
 from __future__ import annotations
 
 import json
+import sys
 from collections import defaultdict
 from pathlib import Path
 
@@ -20,6 +21,9 @@ OUT = Path(__file__).resolve().parent / "blind_review"
 
 
 def main() -> None:
+    global OUT
+    if len(sys.argv) > 1:
+        OUT = Path(sys.argv[1])
     key = {r["item"]: r for r in map(json.loads, (OUT / "key.jsonl").read_text(encoding="utf-8").splitlines())}
     judges = {}
     for f in sorted(OUT.glob("judge-*.jsonl")):
@@ -43,7 +47,8 @@ def main() -> None:
         fam[k["family"]][1] += 1
         fam[k["family"]][0] += i in both
     for f, (a, b) in sorted(fam.items()):
-        print(f"  {f}: {a}/{b}")
+        lo, hi = wilson_interval(a, b)
+        print(f"  {f}: {a}/{b} = {a / b:.0%} [95% CI {lo:.0%}-{hi:.0%}]")
     for i in sorted(set(key) - both):
         notes = "; ".join(f"{j}: {judges[j][i].get('note', '')}" for j in judges if i not in passed_by[j])
         print(f"  failed item {i} ({key[i]['rule']}): {notes}")
