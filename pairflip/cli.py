@@ -91,7 +91,7 @@ def _guard() -> Iterator[None]:
         # pairflip's own code never calls sys.exit inside a command: this came from user code (a
         # model, a module it imported). Passing it on would end the run with its code, 0 for
         # sys.exit(0), and a CI gate would pass with nothing checked.
-        if DEBUG:
+        if DEBUG or _raised_in(err, "on_broken_pipe"):  # rich's exit when a reader such as `head` has gone
             raise
         what = f"sys.exit({err.code!r})" if not isinstance(err.code, str) else f"sys.exit({err.code!r}): {err.code}"
         raise fail(_one_line(f"code run by pairflip (the model?) called {what}; nothing was written")) from None
@@ -119,6 +119,14 @@ def _guard() -> Iterator[None]:
     finally:
         for s, h in old.items():
             signal.signal(s, h if h is not None else signal.SIG_DFL)
+
+
+def _raised_in(err: BaseException, function: str) -> bool:
+    """Whether ``err`` was raised in a function of that name (the innermost frame)."""
+    tb = err.__traceback__
+    while tb is not None and tb.tb_next is not None:
+        tb = tb.tb_next
+    return tb is not None and tb.tb_frame.f_code.co_name == function
 
 
 def _same_file(a: Path, b: Path) -> bool:
@@ -563,6 +571,65 @@ def demo(
             for name in demo_files():
                 _check_output(out_dir / name, [], force, option="--out-dir: demo file", retry=" or choose another --out-dir")
         run_demo(out_dir=out_dir, seed=seed, examples=examples, console=_out_console(), log=_err_console())
+
+
+# --------------------------------------------------------------------------- vet
+
+
+@app.command()
+def vet(
+    file: Path = typer.Argument(..., help="A suite (from `build`) or a results file (from `score`)."),
+    decisions: Path = typer.Option(..., "--decisions", "-d", help="The decisions file: created, or appended to (one JSON line per answer)."),
+    only: str = typer.Option("unvetted", "--only", help="unvetted (default), violations (results files: the pairs the model failed) or all."),
+    rule: List[str] = typer.Option([], "--rule", help="Only this rule or family (repeatable)."),
+    sample: Optional[int] = typer.Option(None, "--sample", help="A seeded random sample of N pairs, spread evenly over the rules."),
+    seed: int = typer.Option(0, "--seed", help="Seed of --sample."),
+    plain: bool = typer.Option(False, "--plain", help="Line by line: print each pair, read one answer per line from stdin (a, r REASON, e SHOULD, s, u, q)."),
+    list_n: Optional[int] = typer.Option(None, "--list", help="Print N pairs readably and exit (no decisions asked)."),
+) -> None:
+    """A person confirms the pairs: accept, reject (with a reason) or change the expectation.
+
+    Later steps take the decisions with --vetted FILE: rejected pairs are left out, changed
+    expectations applied, and violations on accepted pairs are reported as confirmed.
+    """
+    with _guard():
+        from pairflip.decisions import DecisionLog, read_decisions
+        from pairflip.vetting import load_items, select
+
+        if _same_file(decisions, file):
+            raise PairflipError(f"--decisions {decisions}: is the file being vetted; expected a separate decisions file")
+        kind, items = load_items(file)
+        standing = read_decisions(decisions) if decisions.exists() and decisions.stat().st_size else {}
+        chosen = select(items, standing, only=only, rule=rule or None, sample=sample, seed=seed, kind=kind)
+        if list_n is not None:
+            from pairflip.report.vet_view import list_items
+
+            if list_n < 1:
+                raise PairflipError(f"--list {list_n}: expected a whole number of at least 1")
+            list_items(chosen, list_n, _out_console())
+            return
+        if not chosen:
+            _err_console().print(f"nothing to vet: no pair of {file} matches --only {only}"
+                                 + (f" --rule {','.join(rule)}" if rule else ""), markup=False, soft_wrap=True)
+            return
+        if not plain and not (sys.stdin.isatty() and sys.stdout.isatty()):
+            raise PairflipError("vet: the full-screen app needs a terminal; pass --plain to answer line by line from stdin")
+        from pairflip.vetting import VetSession
+
+        log = DecisionLog(decisions)
+        session = VetSession(chosen, log)
+        try:
+            if plain:
+                from pairflip.report.vet_view import run_plain
+
+                run_plain(session, sys.stdin, _out_console())
+            else:
+                from pairflip.report.vet_app import VetApp
+
+                VetApp(session, str(file)).run()
+                _err_console().print(f"{session.progress()}; decisions in {decisions}", markup=False, soft_wrap=True)
+        finally:
+            log.close()
 
 
 def _make_out_dir(out_dir: Path) -> None:

@@ -21,7 +21,12 @@ the rank: 5 -> 4 stars is a move toward the neutral 3 (pass ``source_strength`` 
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING
+
 from pairflip.records import SHOULDS, PairflipError
+
+if TYPE_CHECKING:
+    from pairflip.records import Verdict
 
 # A change of exactly ``margin`` is tolerated; this absorbs float rounding (0.8 - 0.7 > 0.1).
 _EPS = 1e-9
@@ -118,3 +123,20 @@ def judge_many(
     out[flip_v | hold_v | strengthen_v | weaken_v] = _VIOLATION
     out[code["flip"] & ~polar] = _NA
     return out
+
+
+def rejudge(verdict: "Verdict", labels: dict | None, margin: float) -> str:
+    """The outcome of a scored pair under its (possibly changed) ``should``, from the predictions
+    a results file keeps and its header's label mapping; used when a vetted decision changes an
+    expectation after scoring."""
+    from pairflip.labels import LabelMap
+
+    if not labels:
+        raise PairflipError("the results header has no label mapping, so a changed expectation cannot be judged")
+    lm = LabelMap.from_dict(labels)
+    s, v = verdict.source_pred, verdict.variant_pred
+    return judge(
+        verdict.should, lm.polarity_of(s), lm.polarity_of(v), lm.canonical(s), lm.canonical(v),
+        verdict.source_score, verdict.variant_score, margin,
+        source_strength=lm.strength(s), variant_strength=lm.strength(v),
+    )
