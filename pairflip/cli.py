@@ -626,7 +626,7 @@ def vet(
             else:
                 from pairflip.report.vet_app import VetApp
 
-                VetApp(session, str(file)).run()
+                VetApp(session, file.name).run()
                 _err_console().print(f"{session.progress()}; decisions in {decisions}", markup=False, soft_wrap=True)
         finally:
             log.close()

@@ -37,6 +37,7 @@ class VetApp(App[None]):
     CSS = """
     Screen { layout: vertical; }
     #top { height: 1; background: $primary; color: $text; padding: 0 1; }
+    #progress { height: 1; padding: 0 1; color: $text-muted; }
     #pair { height: 1fr; padding: 1 1 0 1; }
     #keys { height: 2; background: $panel; padding: 0 1; }
     """
@@ -50,6 +51,7 @@ class VetApp(App[None]):
 
     def compose(self) -> ComposeResult:
         yield Static(id="top")
+        yield Static(id="progress")
         yield Static(id="pair")
         yield Static(id="keys")
 
@@ -58,8 +60,8 @@ class VetApp(App[None]):
 
     def refresh_view(self) -> None:
         s = self.session
-        self.query_one("#top", Static).update(Text(f"pairflip vet · {self.file_title} · {s.progress()}",
-                                                   no_wrap=True, overflow="ellipsis"))
+        self.query_one("#top", Static).update(Text(f"pairflip vet · {self.file_title}", no_wrap=True, overflow="ellipsis"))
+        self.query_one("#progress", Static).update(Text(s.progress(), no_wrap=True, overflow="ellipsis"))
         item = s.current
         if item is None:
             body: Group | Text = Text("All pairs of this selection are answered. Press q to quit.")

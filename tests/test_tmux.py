@@ -119,3 +119,65 @@ def test_show_side_by_side_and_no_color_in_a_real_terminal(tmp_path: Path) -> No
         assert m in body
     assert max(len(line) for line in body.splitlines()) <= 80
     assert "\x1b[" not in escaped.split(PROBE)[1].split(DONE)[0]  # NO_COLOR: no escape codes, not even bold
+
+
+# --------------------------------------------------------------------------- pairflip vet
+
+
+def _suite_file(path: Path) -> None:
+    from pairflip.files import write_suite
+    from pairflip.records import Pair, Suite
+
+    pairs = [Pair(source=src, variant=var, family=fam, rule=rule, should=should) for fam, rule, should, src, var in RULES]
+    write_suite(Suite(header={}, pairs=pairs), path)
+
+
+@pytest.mark.parametrize("width, height", [(80, 24), (120, 40)])
+def test_vet_app_draws_whole_lines_in_a_real_terminal(tmp_path: Path, width: int, height: int) -> None:
+    _suite_file(tmp_path / "suite.jsonl")
+    sock = f"pairflip-test-{uuid.uuid4().hex[:8]}"
+    base = [TMUX, "-L", sock, "-f", "/dev/null"]
+    cmd = (f"cd {shlex.quote(str(tmp_path))} && env {' '.join(f'{k}={shlex.quote(v)}' for k, v in _env().items())} "
+           f"{shlex.quote(sys.executable)} -m pairflip.cli vet suite.jsonl --decisions d.jsonl; echo {DONE}; sleep 600")
+    subprocess.run(base + ["new-session", "-d", "-x", str(width), "-y", str(height), "-s", "vet", "sh", "-c", cmd],
+                   check=True, env={**os.environ, "TERM": "xterm-256color"})
+
+    def screen() -> list[str]:
+        return subprocess.run(base + ["capture-pane", "-p", "-t", "vet"], capture_output=True, text=True,
+                              check=True).stdout.splitlines()
+
+    def wait_for(needle: str) -> list[str]:
+        deadline = time.monotonic() + 60
+        lines: list[str] = []
+        while time.monotonic() < deadline:
+            lines = screen()
+            if any(needle in ln for ln in lines):
+                return lines
+            time.sleep(0.2)
+        pytest.fail(f"{needle!r} never appeared; the pane shows:\n" + "\n".join(lines))
+
+    try:
+        lines = wait_for("q quit")
+        assert len(lines) <= height and max(len(ln) for ln in lines) <= width
+        text = "\n".join(lines)
+        assert "pairflip vet · suite.jsonl" in text
+        assert "1 of 4" in text
+        # every line of the app is whole: the key help, the rule line and both texts, unbroken
+        assert any("a accept  r reject  e change expectation  s skip  u undo  q quit" in ln for ln in lines)
+        assert any(RULES[0][3] in ln for ln in lines) and any(RULES[0][4] in ln for ln in lines)
+        assert any("negation/do-support" in ln and "should not keep the opinion" in ln for ln in lines)
+        subprocess.run(base + ["send-keys", "-t", "vet", "a"], check=True)
+        wait_for("2 of 4")
+        subprocess.run(base + ["send-keys", "-t", "vet", "r"], check=True)
+        lines = wait_for("esc back")
+        assert any("g ungrammatical" in ln and "o other" in ln for ln in lines)
+        subprocess.run(base + ["send-keys", "-t", "vet", "g"], check=True)
+        wait_for("3 of 4")
+        subprocess.run(base + ["send-keys", "-t", "vet", "q"], check=True)
+        wait_for(DONE)
+    finally:
+        subprocess.run(base + ["kill-server"], check=False, capture_output=True)
+        sock_file = Path(os.environ.get("TMUX_TMPDIR", "/tmp")) / f"tmux-{os.getuid()}" / sock
+        sock_file.unlink(missing_ok=True)
+    recs = (tmp_path / "d.jsonl").read_text(encoding="utf-8").splitlines()
+    assert [r.split('"decision": ')[1][:8] for r in recs[1:]] == ['"accept"', '"reject"']

@@ -236,8 +236,7 @@ def test_app_keys_through_the_textual_pilot(suite_file, tmp_path):
             await pilot.press("u")             # undo that
             await pilot.press("plus")          # not an answer key: nothing happens
             await pilot.pause()
-            top = str(app.query_one("#top").render())
-            assert "4 of 12" in top
+            assert "4 of 12" in str(app.query_one("#progress").render())
             await pilot.press("q")
 
     asyncio.run(drive())
