@@ -13,7 +13,7 @@ from dataclasses import dataclass, field
 from typing import Any, Iterable, Iterator
 
 FAMILIES = ("negation", "double-negation", "intensifier", "reorder")
-SHOULDS = ("flip", "hold", "strengthen", "weaken", "none")
+SHOULDS = ("flip", "hold", "strengthen", "weaken", "rise", "fall", "none")
 VERDICTS = ("ok", "violation", "n/a")
 
 

@@ -11,6 +11,11 @@ hold        the label changed
 strengthen  the polarity reversed or moved toward neutral; with scores, also when |score|
             fell by more than ``margin``
 weaken      the polarity reversed; with scores, also when |score| rose by more than ``margin``
+rise        with scores on both sides: the variant's score is not above the source's by more
+            than ``margin``; labels only: the variant's label polarity is below the source's
+            (``n/a`` when both label polarities are equal: labels cannot show a small rise)
+fall        the mirror of rise: not below by more than ``margin``; labels only: polarity above
+            the source's (``n/a`` when equal)
 none        never (diagnostic rules: only their flip rate is reported)
 ==========  ==============================================================================
 
@@ -58,6 +63,14 @@ def judge(
         raise PairflipError(f"unknown expectation {should!r}; expected one of {', '.join(SHOULDS)}")
     reversed_ = source_polarity != 0 and variant_polarity == -source_polarity
     scored = source_score is not None and variant_score is not None
+    if should in ("rise", "fall"):
+        sign = 1 if should == "rise" else -1
+        if scored:
+            moved = sign * (variant_score - source_score)  # type: ignore[operator]
+            return "ok" if moved > margin + _EPS else "violation"
+        if variant_polarity == source_polarity:
+            return "n/a"
+        return "ok" if sign * (variant_polarity - source_polarity) > 0 else "violation"
     if should == "strengthen":
         if reversed_ or (source_polarity != 0 and variant_polarity == 0):
             return "violation"
@@ -119,9 +132,16 @@ def judge_many(
         reversed_ | (polar & (vp == 0)) | (polar & (vp == sp) & (variant_strength < source_strength)) | fell
     )
     weaken_v = code["weaken"] & (reversed_ | rose)
+    directed = code["rise"] | code["fall"]
+    sign = np.where(code["rise"], 1, -1).astype(np.int8)
+    with np.errstate(invalid="ignore"):
+        moved_enough = sign * (variant_score - source_score) > limit
+    label_moved = sign * (vp.astype(np.int16) - sp) > 0
+    directed_v = directed & np.where(scored, ~moved_enough, ~label_moved & (vp != sp))
     out = np.full(should.shape, _OK, dtype=np.int8)
-    out[flip_v | hold_v | strengthen_v | weaken_v] = _VIOLATION
+    out[flip_v | hold_v | strengthen_v | weaken_v | directed_v] = _VIOLATION
     out[code["flip"] & ~polar] = _NA
+    out[directed & ~scored & (vp == sp)] = _NA
     return out
 
 

@@ -51,6 +51,18 @@ LABEL_ONLY = [
     ("weaken", P, N, "violation"),
     ("weaken", N, P, "violation"),
     ("weaken", Z, P, "ok"),
+    # rise / fall, labels only: the polarity order negative < neutral < positive; equal: n/a
+    ("rise", N, Z, "ok"),
+    ("rise", Z, P, "ok"),
+    ("rise", N, P, "ok"),
+    ("rise", P, Z, "violation"),
+    ("rise", Z, N, "violation"),
+    ("rise", P, P, "n/a"),
+    ("rise", N, N, "n/a"),
+    ("fall", P, N, "ok"),
+    ("fall", Z, N, "ok"),
+    ("fall", N, Z, "violation"),
+    ("fall", Z, Z, "n/a"),
     # none: never
     ("none", P, N, "ok"),
     ("none", P, P, "ok"),
@@ -92,6 +104,14 @@ WITH_SCORES = [
     ("weaken", N, N, -0.5, -0.9, 0.1, "violation"),
     ("weaken", N, N, -0.9, -0.5, 0.0, "ok"),
     ("weaken", P, N, 0.9, -0.1, 0.5, "violation"),  # reversal is a violation whatever the scores
+    # rise / fall with scores: the score must move that way by more than the margin
+    ("rise", N, P, -0.4, 0.3, 0.05, "ok"),
+    ("rise", P, P, 0.2, 0.6, 0.1, "ok"),  # same label, the score rose: judged on the score
+    ("rise", P, P, 0.2, 0.25, 0.1, "violation"),  # rose by less than the margin
+    ("rise", P, P, 0.2, 0.3, 0.1, "violation"),  # rose by exactly the margin: not more than it
+    ("rise", P, P, 0.6, 0.2, 0.0, "violation"),
+    ("fall", P, P, 0.6, 0.2, 0.1, "ok"),
+    ("fall", N, N, -0.2, -0.1, 0.0, "violation"),
     # flip, hold, none ignore scores and margin
     ("flip", P, P, 0.9, 0.1, 0.0, "violation"),
     ("flip", P, N, 0.9, -0.9, 5.0, "ok"),

@@ -38,6 +38,9 @@ side = st.tuples(st.integers(0, 4), st.one_of(st.none(), st.floats(-1, 1)))
 @example(scale=SCALES[2], rows=[("strengthen", (4, None), (3, None)),  # 5 -> 4 stars: closer to neutral
                                  ("weaken", (3, 0.2), (4, 0.9)), ("flip", (2, None), (4, None)),
                                  ("hold", (0, 0.1), (1, 0.1)), ("none", (0, None), (4, None))], margin=0.1)
+@example(scale=SCALES[0], rows=[("rise", (0, None), (0, None)), ("rise", (0, None), (1, None)),  # equal labels: n/a
+                                 ("fall", (1, 0.2), (1, 0.1)), ("fall", (1, 0.2), (1, 0.25)),
+                                 ("rise", (0, -0.5), (1, None)), ("rise", (0, 0.1), (0, 0.2))], margin=0.05)
 def test_judge_many_agrees_with_judge(scale, rows, margin):
     lm = LabelMap(order=scale)
     k = len(scale)
