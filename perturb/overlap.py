@@ -59,6 +59,9 @@ def _warm() -> None:
 
 def _worker(inq: Any, outq: Any, run_doc: Callable[[Any, SourceText, Any], list[Pair]], vocab: Any, new_stats: Callable[[], Any]) -> None:
     signal.signal(signal.SIGINT, signal.SIG_IGN)  # the parent decides when to stop
+    # ... and ends it with SIGTERM when it lingers at exit: die quietly then, not through the CLI's
+    # handler inherited by fork (which would print a traceback from the queue's finaliser).
+    signal.signal(signal.SIGTERM, signal.SIG_DFL)
     try:
         while True:
             item = inq.get()
