@@ -385,3 +385,103 @@ def tokens(doc: "Doc") -> list[Any]:
     if toks is None:
         toks = doc.user_data["pairflip.tokens"] = list(doc)
     return toks
+
+
+# --------------------------------------------------------------------------- lexicon helpers
+
+
+@dataclass(frozen=True)
+class PhraseSpan:
+    """A multiword lexicon expression found in a parse: tokens ``start:end``, the token that
+    heads them (the only one whose syntactic head lies outside), and the entry."""
+
+    start: int
+    end: int
+    head: int
+    entry: Any
+
+
+def phrase_spans(doc: "Doc", lexicon: "Lexicon") -> list[PhraseSpan]:
+    """The lexicon's multiword expressions in ``doc``, left to right, longest first, never
+    overlapping. A word of an expression matches a token whose lower-cased text or lemma it
+    equals; a match that is not one constituent (two tokens with heads outside the span) is
+    dropped. Memoised per doc and lexicon."""
+    key = ("pairflip.phrases", id(lexicon))
+    found = doc.user_data.get(key)
+    if found is None:
+        found = doc.user_data[key] = _phrase_spans(doc, lexicon) if lexicon.phrases else []
+    return found
+
+
+def _phrase_spans(doc: "Doc", lexicon: "Lexicon") -> list[PhraseSpan]:
+    toks = tokens(doc)
+    forms = [(t.lower_.replace("’", "'"), lemma(t).lower()) for t in toks]
+    starts = lexicon.phrase_starts
+    out: list[PhraseSpan] = []
+    i = 0
+    while i < len(toks):
+        keys = starts.get(forms[i][0], []) + (starts.get(forms[i][1], []) if forms[i][1] != forms[i][0] else [])
+        for words in sorted(keys, key=len, reverse=True):
+            j = i + len(words)
+            if j > len(toks) or not all(w in forms[k] for w, k in zip(words, range(i, j))):
+                continue
+            heads = [k for k in range(i, j) if not i <= toks[k].head.i < j or toks[k].head.i == k]
+            if len(heads) != 1:
+                continue  # not one constituent: "worth it" in "worth it, it ..."
+            if not _head_fits(toks[heads[0]], lexicon.phrases[words].pos):
+                continue  # "high priced" is no "high price"; "rip off" the noun is no verb
+            out.append(PhraseSpan(i, j, heads[0], lexicon.phrases[words]))
+            i = j - 1
+            break
+        i += 1
+    return out
+
+
+def _head_fits(head: "Token", pos: str) -> bool:
+    """An expression's head agrees with the entry's part of speech where that is checkable: a verb
+    entry needs a verb head, a noun entry a head that is no verb."""
+    if pos == "VERB":
+        return head.pos_ in ("VERB", "AUX")
+    if pos == "NOUN":
+        return head.pos_ not in ("VERB", "AUX")
+    return True
+
+
+def phrase_at(tok: "Token", lexicon: "Lexicon") -> PhraseSpan | None:
+    """The expression that ``tok`` belongs to, or ``None``."""
+    for sp in phrase_spans(tok.doc, lexicon):
+        if sp.start <= tok.i < sp.end:
+            return sp
+    return None
+
+
+# A linking verb's predicative complement ("smells fresh", "tastes great", "became a hit"),
+# or its "like" phrase ("smells like pine"); common practice, from the grammar of copular verbs
+# (Quirk et al. 1985, on copular verbs; from memory).
+_COMPLEMENT_DEPS = frozenset({"acomp", "attr", "oprd"})
+
+
+def qualifiers(tok: "Token") -> list["Token"]:
+    """The words that qualify ``tok``: a verb's predicative complements and *like* phrases
+    ("smells fresh", "smells like burning plastic"), a noun's adjectives ("a fresh smell"), each
+    with its subtree."""
+    heads: list[Any] = []
+    if tok.pos_ in ("VERB", "AUX"):
+        for c in tok.children:
+            if c.dep_ in _COMPLEMENT_DEPS or (c.dep_ == "xcomp" and c.pos_ == "ADJ") or (
+                    c.dep_ == "prep" and c.lower_ == "like"):
+                heads.append(c)
+    elif tok.pos_ in ("NOUN", "PROPN"):
+        heads = [c for c in tok.children if c.dep_ == "amod" and c.pos_ == "ADJ"]
+    return [x for h in heads for x in h.subtree if not (x.i == h.i and h.dep_ == "prep")]
+
+
+def linking_use(tok: "Token", lexicon: "Lexicon") -> bool:
+    """``tok`` is qualified by a word of the lexicon, which then sets the polarity: a linking
+    verb with an opinion complement ("smells fresh"), a noun with an opinion adjective ("a fresh
+    smell"). Used for entries whose context is ``alone``; without such a qualifier ("it smells",
+    "smells like burning plastic", "the smell") the entry keeps its own polarity."""
+    for x in qualifiers(tok):
+        if x.is_alpha and (lexicon.lookup(x.lower_) is not None or lexicon.lookup(lemma(x).lower()) is not None):
+            return True
+    return False

@@ -36,6 +36,10 @@ enough, barely, ...) or any other adverb ("surprisingly cool"); stacked attribut
 ("a big roomy tent"); and texts whose opinion words disagree in polarity or that contain a
 contrast ("roomy but heavy"), since weakening one side of a mixed text may strengthen the other.
 
+Words inside a multiword lexicon expression ("worth it", "well-made", "value for money") are never
+graded; the expression's polarity counts in the agreement check above, and a word marked ``alone``
+("smells" in "smells musty") counts only when nothing qualifies it.
+
 Only words that carry the text's opinion are graded: predicative adjectives right after a
 linking verb (be, feel, look, seem, ...; "we turned poor" is a fact), attributive adjectives only
 in a plain "a/the ADJ NOUN" object, complement or fragment, and manner adverbs after verbs of
@@ -52,7 +56,8 @@ from __future__ import annotations
 
 from typing import TYPE_CHECKING, Iterator
 
-from pairflip.perturb.base import NEGATORS, Candidate, Context, TokenEdit, is_question, lemma, sent_of, sents, tokens
+from pairflip.perturb.base import (NEGATORS, Candidate, Context, TokenEdit, is_question, lemma, linking_use, phrase_at,
+                                   sent_of, sents, tokens)
 from pairflip.perturb.lexicon import OpinionWord
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -170,6 +175,8 @@ def _target(tok: "Token", lex: "Lexicon") -> tuple["OpinionWord", str] | None:
         return None
     if tok.tag_ in ("JJR", "JJS", "RBR", "RBS"):
         return None
+    if phrase_at(tok, lex) is not None:
+        return None  # part of a multiword expression ("worth it", "well-made"): not graded alone
     if _name_like(tok) or _fixed_context(tok):
         return None
     if tok.lower_ in OTHER_DEGREE:
@@ -363,6 +370,11 @@ def _as_well(tok: "Token") -> bool:
 
 def _opinion_tokens(doc: "Doc", lex: "Lexicon") -> Iterator[tuple["Token", "OpinionWord"]]:
     for tok in tokens(doc):
+        sp = phrase_at(tok, lex)
+        if sp is not None:  # "waste of money": one opinion, on the expression's head
+            if sp.head == tok.i:
+                yield tok, sp.entry
+            continue
         if tok.tag_ in ("JJR", "JJS", "RBR", "RBS"):
             continue
         hit = None
@@ -372,6 +384,8 @@ def _opinion_tokens(doc: "Doc", lex: "Lexicon") -> Iterator[tuple["Token", "Opin
             hit = lex.lookup(lemma(tok), tok.pos_)
             if hit is None and tok.pos_ == "NOUN" and _is_adjective(tok, lex):
                 hit = lex.lookup(tok.lower_, "ADJ")
+        if hit is not None and hit.context == "alone" and linking_use(tok, lex):
+            continue  # "smells fresh": a linking verb, the complement carries the opinion
         if hit is not None and tok.lower_ not in lex.intensifiers:
             yield tok, hit
 

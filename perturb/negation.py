@@ -2,7 +2,9 @@
 
 A text is cut into *clauses* (a finite predicate with its subject, auxiliaries and its own
 dependents, not counting nested finite clauses) and *fragments* (a sentence with no finite verb).
-A clause carries an opinion when its own tokens hold an opinion-lexicon word. Every clause that
+A clause carries an opinion when its own tokens hold an opinion-lexicon word (a multiword expression
+such as "waste of money" counts once, on its head; a word marked ``alone`` counts only when nothing
+qualifies it: "it smells", not "it smells fresh"; see :func:`opinion_of`). Every clause that
 carries an opinion is toggled — negated when positive, its negation removed when negative — in one
 candidate, so a sentence is never left half flipped; when one of them cannot be toggled safely
 (questions, imperatives, conditionals, fragments, negative-polarity words, inversions) the text
@@ -51,7 +53,8 @@ from typing import TYPE_CHECKING, Iterator
 
 from pairflip.perturb import grammar as g
 from pairflip.perturb.intensifier import _adverb_grade
-from pairflip.perturb.base import NEGATORS, Candidate, Context, TokenEdit, lemma, match_case, sent_of, sents, tokens
+from pairflip.perturb.base import (NEGATORS, Candidate, Context, TokenEdit, lemma, linking_use, match_case, phrase_at,
+                                   sent_of, sents, tokens)
 
 if TYPE_CHECKING:  # pragma: no cover
     from spacy.tokens import Doc, Token
@@ -169,6 +172,11 @@ class Fragment:
 def opinion_of(tok: "Token", lexicon: "Lexicon"):
     """The opinion-lexicon entry of a token (by lemma and part of speech), or ``None``.
 
+    A token inside a multiword expression of the lexicon has the expression's entry when it is the
+    expression's head, else none ("waste of money": *waste* carries it, *money* nothing). An entry
+    whose context is ``alone`` gives none when a lexicon word qualifies the token ("smells fresh",
+    "a fresh smell": the complement or adjective carries the opinion).
+
     Memoised per doc and lexicon in ``doc.user_data`` (rules ask about the same tokens often).
     """
     memo = tok.doc.user_data.setdefault(("pairflip.opinion_of", id(lexicon)), {})
@@ -179,6 +187,16 @@ def opinion_of(tok: "Token", lexicon: "Lexicon"):
 
 
 def _opinion_of(tok: "Token", lexicon: "Lexicon"):
+    sp = phrase_at(tok, lexicon)
+    if sp is not None:  # "waste of money", "on time": one opinion, carried by the expression's head
+        return sp.entry if sp.head == tok.i else None
+    hit = _word_opinion(tok, lexicon)
+    if hit is not None and hit.context == "alone" and linking_use(tok, lexicon):
+        return None  # "smells fresh", "a fresh smell": the complement or adjective carries the opinion
+    return hit
+
+
+def _word_opinion(tok: "Token", lexicon: "Lexicon"):
     pos = _POS_TO_LEX.get(tok.pos_)
     if pos is None or not tok.is_alpha:
         return None
