@@ -260,7 +260,7 @@ def test_malformed_line_in_the_middle_is_not_called_truncated(tmp_path, capsys, 
 @pytest.mark.parametrize(
     "field, value, needles",
     [
-        ("should", "flipp", ["'should'", "'flipp'", "flip, hold, strengthen, weaken, none"]),
+        ("should", "flipp", ["'should'", "'flipp'", "flip, hold, strengthen, weaken, rise, fall, none"]),
         ("source", None, ["'source'", "None", "a string"]),
         ("edits", {"start": 1}, ["'edits'", "an object", "array"]),
         ("edits", [{"start": 12, "end": 99, "text": "not "}], ["edits[0]", "12..99", "18 characters"]),
