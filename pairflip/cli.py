@@ -178,8 +178,25 @@ def _progress(description: str):
     return progress_bar(description)
 
 
+def _print_version(value: bool) -> None:
+    if value:
+        from importlib.metadata import PackageNotFoundError, version
+
+        import pairflip
+
+        try:
+            installed = version("pairflip")
+        except PackageNotFoundError:  # running from a source tree that was never installed
+            installed = pairflip.__version__
+        _out_console().print(f"pairflip {installed}", markup=False)
+        raise typer.Exit(0)
+
+
 @app.callback()
-def _main(debug: bool = typer.Option(False, "--debug", help="Show tracebacks instead of one-line errors.")) -> None:
+def _main(
+    debug: bool = typer.Option(False, "--debug", help="Show tracebacks instead of one-line errors."),
+    version: bool = typer.Option(False, "--version", callback=_print_version, is_eager=True, help="Print the version and exit."),
+) -> None:
     global DEBUG
     DEBUG = debug
 
@@ -208,6 +225,7 @@ def build(
     max_per_rule: int = typer.Option(1, "--max-per-rule", help="Variants kept per rule and source text."),
     recheck: bool = typer.Option(False, "--recheck", help="Parse every variant again to check it (slower)."),
     overlap: bool = typer.Option(True, "--overlap/--no-overlap", help="On big inputs, run the rules in a second process while parsing (same suite, less time)."),
+    unit: str = typer.Option("sentence", "--unit", help="What one source is: 'sentence' (each sentence of a text, default) or 'text' (the whole text)."),
     force: bool = typer.Option(False, "--force", help="Overwrite the output file if it exists."),
 ) -> None:
     """Make a suite of minimal pairs from your own texts."""
@@ -216,7 +234,7 @@ def build(
             corpus, output, families=families, text_column=text_column, label_column=label_column,
             text_field=text_field, label_field=label_field, encoding=encoding, seed=seed, workers=workers,
             spacy_model=spacy_model, lexicon=lexicon, max_per_rule=max_per_rule, recheck=recheck, force=force,
-            overlap=overlap,
+            overlap=overlap, unit=unit,
         )
         from pairflip.report.build_summary import render_build_stats
 
@@ -231,8 +249,9 @@ def build_to_file(corpus: Path, output: Path, *, families: Any, force: bool, **k
 
     _check_output(output, [corpus], force, option=kw.get("output_option", "-o"), retry=kw.get("retry", ""))
     _check_counts(workers=kw["workers"], max_per_rule=kw["max_per_rule"])
-    from pairflip.perturb.build import resolve_rules
+    from pairflip.perturb.build import DEFAULT_UNIT, check_unit, resolve_rules
 
+    unit = check_unit(kw.get("unit", DEFAULT_UNIT))
     try:
         resolve_rules(families)  # fail on an unknown family before any parsing
     except PairflipError as err:
@@ -253,13 +272,14 @@ def build_to_file(corpus: Path, output: Path, *, families: Any, force: bool, **k
     nlp = load_nlp(kw["spacy_model"])
     lex = load_lexicon(kw["lexicon"])
     stats = BuildStats()
-    header = suite_header(families, kw["seed"], nlp, lex, kw["max_per_rule"], kw["recheck"])
+    header = suite_header(families, kw["seed"], nlp, lex, kw["max_per_rule"], kw["recheck"], unit)
     header["corpus"] = str(corpus)
     with _progress("building pairs") as bar, atomic_writer(output, force=True) as fh:
         pairs = iter_pairs(
             all_texts(), families=families, seed=kw["seed"], nlp=nlp, lexicon=lex, workers=kw["workers"],
             max_per_rule=kw["max_per_rule"], recheck=kw["recheck"], stats=stats,
             on_source=(lambda n: bar.update(n, total)) if bar else None, overlap=kw.get("overlap", True),
+            unit=unit,
         )
         write_suite_stream(header, pairs, fh)
     return stats
@@ -510,6 +530,7 @@ def audit(
     on: Optional[str] = typer.Option(None, "--on", help="Gate on the point estimate, or the upper/lower bound of the 95% interval."),
     examples: int = typer.Option(3, "--examples"),
     force: bool = typer.Option(False, "--force", help="Overwrite files in --out-dir."),
+    unit: str = typer.Option("sentence", "--unit", help="What one source is: 'sentence' (each sentence of a text, default) or 'text' (the whole text)."),
 ) -> None:
     """build + score + show (+ gate when --limit or --limits is given) in one go."""
     with _guard():
@@ -536,7 +557,7 @@ def audit(
             corpus, suite_path, families=families, text_column=text_column, label_column=label_column,
             text_field=text_field, label_field=label_field, encoding=encoding, seed=seed, workers=workers,
             spacy_model=spacy_model, lexicon=lexicon, max_per_rule=1, recheck=False, force=force,
-            output_option="--out-dir: suite file", retry=retry,
+            output_option="--out-dir: suite file", retry=retry, unit=unit,
         )
         from pairflip.report.build_summary import render_build_stats
 

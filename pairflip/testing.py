@@ -26,7 +26,7 @@ from pairflip.records import PairflipError, Results, Suite
 __all__ = ["gate", "pairflip_gate"]
 
 
-def _as_suite(suite: Any, *, families: Any, seed: int) -> Suite:
+def _as_suite(suite: Any, *, families: Any, seed: int, unit: str = "sentence") -> Suite:
     if isinstance(suite, Suite):
         return suite
     if isinstance(suite, (str, os.PathLike)):
@@ -38,7 +38,7 @@ def _as_suite(suite: Any, *, families: Any, seed: int) -> Suite:
             raise PairflipError("gate: the list of texts to build a suite from is empty")
         from pairflip import build_suite
 
-        return build_suite(list(suite), families=families, seed=seed)
+        return build_suite(list(suite), families=families, seed=seed, unit=unit)
     raise PairflipError(
         f"gate: suite must be a Suite, the path of a suite file, or a list of texts; got {type(suite).__name__}"
     )
@@ -66,12 +66,14 @@ def gate(
     cluster: str | None = None,
     families: Any = None,
     seed: int = 0,
+    unit: str = "sentence",
     **score_kw: Any,
 ) -> Any:
     """Score ``model`` on ``suite`` and judge ``limits``; raise ``AssertionError`` when the gate fails.
 
-    Returns the :class:`~pairflip.report.gate.GateOutcome` when it passes. ``families`` and
-    ``seed`` apply when ``suite`` is a list of texts to build from; other keywords
+    Returns the :class:`~pairflip.report.gate.GateOutcome` when it passes. ``families``,
+    ``seed`` and ``unit`` (``"sentence"``, the default, or ``"text"``: what one source is, as
+    ``pairflip build --unit``) apply when ``suite`` is a list of texts to build from; other keywords
     (``labels``, ``margin``, ``batch_size``) go to :func:`pairflip.score`. Bad input (an unknown
     family in a limit, a malformed limit) raises :class:`~pairflip.records.PairflipError`.
     """
@@ -83,7 +85,7 @@ def gate(
     if isinstance(limits, str):
         limits = [limits]
     lims = list(limits or [])
-    s = _as_suite(suite, families=families, seed=seed)
+    s = _as_suite(suite, families=families, seed=seed, unit=unit)
     results = score(s, model, **score_kw)
     outcome = run_gate(results, lims, limits_file=limits_file, on=on, baseline=_as_results(baseline),
                        alpha=alpha, cluster=cluster, seed=seed)

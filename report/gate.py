@@ -27,7 +27,8 @@ A file of its own may also hold ``limits`` (and ``on``, ``alpha``) at its top le
 on the command line win over the file's ``on`` and ``alpha``; limits from both are all checked.
 
 What is judged: ``--on point`` the rate itself, ``--on upper``/``lower`` the bound of its 95 %
-interval (Wilson, or the source-cluster bootstrap with ``--cluster source``). ``upper`` is the
+interval (Wilson, or with ``--cluster source`` the source-cluster bootstrap, which is never
+narrower than the Wilson interval at the number of sources, so never less cautious). ``upper`` is the
 cautious choice for ``<=`` limits on small suites: the gate passes only when the data show the
 rate is below the limit.
 

@@ -4,7 +4,8 @@
 - :func:`cluster_bootstrap_ci`: a seeded percentile bootstrap of a rate that resamples whole
   clusters (source sentences), for pairs that are not independent because several come from one
   sentence (Efron & Tibshirani 1993, ch. 13, percentile interval; resampling clusters rather than
-  items is common practice for clustered data).
+  items is common practice for clustered data), widened to contain the Wilson interval at the
+  effective sample size (:func:`wilson_interval_at`).
 - :func:`mcnemar_exact`: McNemar's test (McNemar 1947) in its exact form, a two-sided binomial
   test on the discordant pairs.
 - :func:`holm`: Holm's step-down adjustment of p-values for several tests (Holm 1979).
@@ -14,6 +15,7 @@ from __future__ import annotations
 
 import math
 from collections import defaultdict
+from statistics import NormalDist
 from typing import Hashable, Sequence
 
 Z95 = 1.959963984540054  # the 0.975 quantile of the standard normal
@@ -28,16 +30,32 @@ def wilson_interval(k: int, n: int, z: float = Z95) -> tuple[float, float]:
         raise ValueError(f"need 0 <= k <= n, got k={k}, n={n}")
     if n == 0:
         return (0.0, 1.0)
-    p = k / n
+    return wilson_interval_at(k / n, n, z)  # k / n is exactly 0.0 at k == 0 and 1.0 at k == n
+
+
+def wilson_interval_at(rate: float, n: int, z: float = Z95) -> tuple[float, float]:
+    """The Wilson score interval of an observed ``rate`` as if it came from ``n`` independent trials.
+
+    ``rate * n`` need not be a whole number: this is the interval of a rate measured on more items
+    than ``n`` that are not independent, at an effective sample size ``n`` (the number of
+    clusters). With ``n == 0`` the interval is ``(0.0, 1.0)``.
+    """
+    if not 0.0 <= rate <= 1.0:
+        raise ValueError(f"rate must lie in [0, 1], got {rate}")
+    if n < 0:
+        raise ValueError(f"n must be >= 0, got {n}")
+    if n == 0:
+        return (0.0, 1.0)
+    p = rate
     z2 = z * z
     denom = 1.0 + z2 / n
     centre = (p + z2 / (2 * n)) / denom
     half = (z / denom) * math.sqrt(p * (1 - p) / n + z2 / (4 * n * n))
     lo, hi = centre - half, centre + half
-    # At k == 0 (k == n) the bound is exactly 0 (1); rounding can leave 1e-17 instead.
-    if k == 0:
+    # At a rate of 0 (1) the bound is exactly 0 (1); rounding can leave 1e-17 instead.
+    if p == 0.0:
         lo = 0.0
-    if k == n:
+    if p == 1.0:
         hi = 1.0
     return (max(0.0, lo), min(1.0, hi))
 
@@ -52,6 +70,18 @@ def cluster_bootstrap_ci(
     Each of ``n_boot`` resamples draws as many clusters as there are, with replacement. Seeded
     (numpy's PCG64), so the same input and seed give the same interval on every machine.
     With no items the interval is ``(0.0, 1.0)``.
+
+    The interval is never narrower than the Wilson interval of the same counts at the effective
+    sample size: with ``p`` = successes / items and ``n_eff`` = the number of clusters (each
+    cluster given holds at least one item), ``(lo_w, hi_w) = wilson_interval_at(p, n_eff)`` at
+    the same ``level``, and the result is ``(min(lo_boot, lo_w), max(hi_boot, hi_w))``. This
+    matters where the bootstrap collapses: when every cluster has the same rate (0 successes,
+    all successes, or one rate everywhere) every resample gives that rate, the percentile
+    interval is a single point, and the Wilson interval at ``n_eff`` is returned instead (no
+    resampling is done). Since ``n_eff`` is at most the number of items and the Wilson interval
+    at a smaller ``n`` contains the one at a larger ``n`` for the same rate (its bounds solve
+    ``(p - t)**2 = z**2 t (1 - t) / n``), the result also contains the plain Wilson interval over
+    items, so ``--on upper`` with ``--cluster source`` is never less cautious than without.
     """
     import numpy as np
 
@@ -69,9 +99,12 @@ def cluster_bootstrap_ci(
     succ = np.array([g[0] for g in groups.values()], dtype=np.float64)
     size = np.array([g[1] for g in groups.values()], dtype=np.float64)
     m = len(succ)
-    if succ.sum() == 0 or succ.sum() == size.sum():  # every resample has the same rate
-        r = float(succ.sum() / size.sum())
-        return (r, r)
+    z = Z95 if level == 0.95 else NormalDist().inv_cdf(0.5 + level / 2.0)  # Z95 as in wilson_interval
+    w_lo, w_hi = wilson_interval_at(float(succ.sum() / size.sum()), m, z)
+    # Every cluster at one rate (counts are whole numbers, so the cross products are exact):
+    # every resample has that rate and the percentile interval would be a single point.
+    if np.array_equal(succ * size[0], size * succ[0]):
+        return (w_lo, w_hi)
     rng = np.random.default_rng(seed)
     rates = np.empty(n_boot, dtype=np.float64)
     # Draw cluster multiplicities (a multinomial over the clusters) in chunks, so memory stays
@@ -84,7 +117,7 @@ def cluster_bootstrap_ci(
         rates[start:stop] = (w @ succ) / (w @ size)
     alpha = (1.0 - level) / 2.0
     lo, hi = np.quantile(rates, [alpha, 1.0 - alpha])
-    return (float(lo), float(hi))
+    return (min(float(lo), w_lo), max(float(hi), w_hi))
 
 
 def binom_cdf_half(k: int, n: int) -> float:

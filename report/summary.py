@@ -11,8 +11,13 @@ Decisions recorded here:
   ``violation_rate = violations / applicable``. A family whose only rules are ``none`` has
   ``applicable == 0`` and no violation rate to speak of.
 - ``ci95`` is the 95 % Wilson interval of the violation rate, ``flip_ci95`` that of the flip rate;
-  with ``cluster="source"`` both are a seeded percentile bootstrap over source sentences. A group
-  with no pairs to count gets ``(0.0, 1.0)``: nothing is known.
+  with ``cluster="source"`` both are a seeded percentile bootstrap over source texts
+  (:func:`cluster_key`: the sentences of one text, ``build --unit sentence``, are one cluster), widened
+  to contain the Wilson interval of the same rate at the effective sample size (the number of
+  clusters with at least one pair counted in that rate: applicable pairs for ``ci95``, scored
+  pairs for ``flip_ci95``), so a rate of 0 or 1 still gets an interval of width
+  (:func:`pairflip.report.stats.cluster_bootstrap_ci`). A group with no pairs to count gets
+  ``(0.0, 1.0)``: nothing is known.
 - A family's own numbers leave out its diagnostic rules (should ``none``, e.g.
   ``reorder/shuffle``): they carry no expectation, and mixing a random word order into the
   family's flip rate would blur the rate that gates read. Each diagnostic rule keeps its own row
@@ -31,6 +36,7 @@ Decisions recorded here:
 
 from __future__ import annotations
 
+import re
 from collections import defaultdict
 from dataclasses import dataclass, field
 from typing import Any, Iterable, Sequence
@@ -161,14 +167,32 @@ def _fill(g: GroupStats, vs: Sequence[Verdict], cluster: str | None, seed: int, 
     g.not_applicable = sum(1 for v in vs if v.verdict == "n/a")
     if cluster == "source":
         g.ci95 = cluster_bootstrap_ci(
-            [(v.source_id or v.source, v.verdict == "violation") for v in appl], seed=seed, n_boot=n_boot
+            [(cluster_key(v), v.verdict == "violation") for v in appl], seed=seed, n_boot=n_boot
         )
         g.flip_ci95 = cluster_bootstrap_ci(
-            [(v.source_id or v.source, v.flipped) for v in vs], seed=seed, n_boot=n_boot
+            [(cluster_key(v), v.flipped) for v in vs], seed=seed, n_boot=n_boot
         )
     else:
         g.ci95 = wilson_interval(g.violations, g.applicable)
         g.flip_ci95 = wilson_interval(g.flips, g.pairs)
+
+
+# A sentence unit's source_id (``build --unit sentence``): its text's id, ":", the sentence index.
+_SENTENCE_ID = re.compile(r"([0-9a-f]{16}):[0-9]+")
+
+
+def cluster_key(v: Verdict) -> str:
+    """What ``cluster="source"`` resamples: the text a pair's source came from.
+
+    A sentence unit's ``source_id`` is ``TEXT_ID:INDEX`` and clusters by ``TEXT_ID``, so the
+    sentences of one review stay together; any other ``source_id`` (a whole text's, or one of a
+    hand-made suite) is its own cluster, and pairs without one cluster by their source text.
+    """
+    sid = v.source_id
+    if not sid:
+        return v.source
+    m = _SENTENCE_ID.fullmatch(sid)
+    return m.group(1) if m else sid
 
 
 def _should_of(vs: Iterable[Verdict]) -> str:
@@ -187,7 +211,8 @@ def summarize(
     """Per family and per rule: pairs, applicable, flips, violations, rates and 95 % intervals.
 
     ``cluster="source"`` replaces the Wilson interval by a seeded bootstrap over source
-    sentences (pairs made from one sentence are not independent).
+    sentences (pairs made from one sentence are not independent), never narrower than the Wilson
+    interval at the number of sources.
     """
     if cluster not in (None, "none", "source"):
         raise PairflipError(f"--cluster {cluster!r}: expected 'source' (bootstrap over source sentences) or 'none'")

@@ -77,3 +77,30 @@ def test_overlapped_build_equals_one_process_build(nlp):
     assert [p.to_dict() for p in two] == [p.to_dict() for p in one]
     assert two.stats.to_dict() == one.stats.to_dict()
     assert seen == list(range(1, len(texts) + 1))  # progress counts every source, in order
+
+
+def test_overlapped_build_equals_one_process_build_with_sentence_units(nlp, monkeypatch):
+    # Texts of three sentences, and the hand-over to the rule process after the second source, so
+    # inside the first text: its sentences are split between the two processes. Pairs, counts
+    # (each text with pairs counted once) and progress must still be those of a one-process build.
+    import pairflip
+    from pairflip.perturb import build as build_mod, overlap
+    from pairflip.records import stable_id
+
+    if not overlap.available():
+        import pytest
+
+        pytest.skip("needs two cores and the fork start method")
+    sents = load_sentences()
+    texts = [" ".join(sents[i:i + 3]) for i in range(0, 300, 3)]
+    monkeypatch.setattr(build_mod, "OVERLAP_AFTER", 2)
+    seen: list[int] = []
+    one = pairflip.build_suite(texts, seed=0, nlp=nlp, overlap=False, unit="sentence")
+    two = pairflip.build_suite(texts, seed=0, nlp=nlp, overlap=True, unit="sentence", on_source=seen.append)
+    first = stable_id("source", texts[0])
+    assert {p.source_id for p in one if p.extra.get("text_id") == first} == {f"{first}:{i}" for i in range(3)}
+    assert [p.to_dict() for p in two] == [p.to_dict() for p in one]
+    assert two.stats.to_dict() == one.stats.to_dict()
+    assert seen == list(range(1, len(texts) + 1))
+    with_pairs = {p.extra.get("text_id") or p.source_id for p in one}
+    assert one.stats.sources_with_pairs == len(with_pairs) > 90

@@ -474,3 +474,80 @@ def test_jsonl_lone_surrogate(tmp_path, capsys):
     out = tmp_path / "suite.jsonl"
     code, _, err = run(["build", corpus, "-o", out], capsys)
     assert_clean_failure(code, err, out, f"{corpus}:2", "'text'", "lone surrogate")
+
+
+# --------------------------------------------------------------------------- issue 12: long texts
+# The README says the rules skip long texts; a 200,000-character line still made pairs (reorder).
+# The limit is negation's MAX_WORDS (30 alphabetic words), now applied by the build to every
+# source: the whole text with --unit text, each sentence with --unit sentence (the default).
+
+# 28 words, one sentence, invented (demo scenario)
+_LONG_BASE = ("We pitched the roomy green tent beside a quiet lake, cooked fresh trout on the small stove, "
+              "watched bright stars for hours and then slept warmly until sunrise")
+
+
+def _line_of_reviews(n_chars: int) -> str:
+    """A line of ``n_chars`` characters made of whole demo review sentences."""
+    from pairflip.demo.models import load_sentences
+
+    sents = load_sentences()
+    out, size, i = [], 0, 0
+    while size < n_chars:
+        out.append(sents[i % len(sents)])
+        size += len(sents[i % len(sents)]) + 1
+        i += 1
+    return " ".join(out)[:n_chars]
+
+
+def test_200000_character_line_gives_no_pair_of_it_as_a_whole(tmp_path, capsys):
+    long_line = _line_of_reviews(200_000)
+    corpus = write(tmp_path / "r.txt", "\n".join([REVIEWS[0], long_line, REVIEWS[2]]) + "\n")
+    out = tmp_path / "suite.jsonl"
+    code, _, err = run(["build", corpus, "-o", out], capsys)
+    assert code == 0, err
+    pairs = read_suite(out).pairs
+    # Sentence units (the default): the line's own sentences are sources, never the line itself,
+    # and no source is over the limit (words counted as whitespace-separated words here).
+    assert pairs and all(len(p.source.split()) <= 30 for p in pairs)
+    assert {p.source for p in pairs} & {REVIEWS[0], REVIEWS[2]}
+    assert any(p.extra.get("text_id") for p in pairs)  # sentences cut from the long line
+
+
+def test_long_text_is_skipped_unparsed_and_counted_with_unit_text(tmp_path, capsys, nlp, monkeypatch):
+    long_line = _line_of_reviews(200_000)
+    parsed: list[str] = []
+    real_pipe = nlp.pipe
+
+    def pipe(texts, **kw):  # record what reaches the parser (spaCy calls pipe again inside)
+        def seen(items):
+            for text, ctx in items:
+                parsed.append(text)
+                yield text, ctx
+        return real_pipe(seen(texts) if kw.get("as_tuples") else texts, **kw)
+
+    monkeypatch.setattr(nlp, "pipe", pipe)
+    corpus = write(tmp_path / "r.txt", "\n".join([REVIEWS[0], long_line, REVIEWS[2]]) + "\n")
+    out = tmp_path / "suite.jsonl"
+    code, _, err = run(["build", corpus, "-o", out, "--unit", "text"], capsys)
+    assert code == 0, err
+    flat = " ".join(err.split())
+    sources, with_pairs, _ = _summary(flat)
+    assert sources == 3 and with_pairs == 2
+    assert "skipped 1 texts (more than 30 words)" in flat
+    assert long_line not in _sources(out)
+    assert parsed == [REVIEWS[0], REVIEWS[2]]  # counted by the tokenizer, never parsed
+
+
+@pytest.mark.parametrize("unit, reason", [("text", "more than 30 words"),
+                                          ("sentence", "a sentence of more than 30 words")])
+def test_thirty_words_pass_thirty_one_are_skipped(tmp_path, capsys, unit, reason):
+    t30 = _LONG_BASE + " each morning."
+    t31 = _LONG_BASE + " each cold morning."
+    assert (len(t30.split()), len(t31.split())) == (30, 31)
+    corpus = write(tmp_path / "r.txt", f"{t30}\n{t31}\n")
+    out = tmp_path / "suite.jsonl"
+    code, _, err = run(["build", corpus, "-o", out, "--unit", unit, "--families", "reorder/shuffle"], capsys)
+    assert code == 0, err
+    flat = " ".join(err.split())
+    assert f"skipped 1 texts ({reason})" in flat
+    assert set(_sources(out)) == {t30}

@@ -313,3 +313,32 @@ def test_cli_gate_baseline(tmp_path):
     assert res.exit_code == 1 and "regressed" in res.output
     res = _cli(["gate", str(old), "--baseline", str(new)])
     assert res.exit_code == 0
+
+
+# --------------------------------------------------------------------------- issue 12: --cluster source
+
+
+@pytest.mark.parametrize("violated, limit", [
+    (False, "negation.violation <= 0.05"),  # no violation in 40 pairs: Wilson's upper bound is 8.8 %
+    (True, "negation.violation >= 0.95"),   # every pair violated: Wilson's lower bound is 91.2 %
+])
+def test_cli_gate_cluster_source_is_never_less_cautious(tmp_path, violated, limit):
+    # 8 sources of 5 pairs each. Before the fix the cluster bootstrap collapsed to a point (0 or 1),
+    # so `--on upper --cluster source` (`--on lower` for a ">=" limit) passed what plain Wilson fails.
+    path = tmp_path / "results.jsonl"
+    vs = [V(s * 5 + j, violated=violated, flipped=not violated, src=f"src{s}") for s in range(8) for j in range(5)]
+    write_results(R(vs), path)
+    on = "upper" if "<=" in limit else "lower"
+    plain = _cli(["gate", str(path), "--on", on, "--limit", limit])
+    assert plain.exit_code == 1, plain.output
+    clustered = _cli(["gate", str(path), "--on", on, "--cluster", "source", "--limit", limit])
+    assert clustered.exit_code == 1, clustered.output
+    assert "FAIL" in clustered.output
+    # the bound judged is Wilson at the 8 sources (statsmodels' proportion_confint, method="wilson")
+    from statsmodels.stats.proportion import proportion_confint
+
+    res = run_gate(R(vs), [limit], on=on, cluster="source")
+    lo, hi = proportion_confint(40 if violated else 0, 40, method="wilson")
+    lo8, hi8 = proportion_confint(8 if violated else 0, 8, method="wilson")
+    assert res.limits[0].value == pytest.approx(lo8 if violated else hi8, abs=1e-12)
+    assert (res.limits[0].value < lo) if violated else (res.limits[0].value > hi)

@@ -141,3 +141,16 @@ def test_fixture_without_limits_or_pyproject_says_so(pytester):
     result = pytester.runpytest("-p", "no:cacheprovider", "-k", "pyproject")
     result.assert_outcomes(failed=1)
     result.stdout.fnmatch_lines(["*no limits given and no [[]tool.pairflip.gate[]] table*"])
+
+
+def test_gate_builds_with_the_unit_given(nlp):
+    # A list of texts is built as `pairflip build` would: by sentence (the default) or whole texts.
+    texts = ["The tent is roomy and warm. The stove lights quickly on cold mornings. These boots are comfortable.",
+             "The lantern is bright. The strap feels flimsy."]
+    limit = "reorder/shuffle.flip <= 100%"
+    by_text = gate(negation_aware, texts, limit, unit="text", families="reorder/shuffle")
+    by_sentence = gate(negation_aware, texts, limit, families="reorder/shuffle")
+    assert by_text.limits[0].count == 2  # one shuffled variant per source
+    assert by_sentence.limits[0].count == 5
+    with pytest.raises(PairflipError, match="--unit"):
+        gate(negation_aware, texts, limit, unit="paragraph")

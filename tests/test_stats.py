@@ -155,8 +155,19 @@ def _clustered(seed: int, clusters: int, rate: float, spread: float = 0.0):
     return items
 
 
+def _agreeing(seed: int, clusters: int, rate: float):
+    """Clusters of 1-6 pairs that share one outcome: the bootstrap is wider than the Wilson
+    interval at the number of clusters, so the seed shows in the interval."""
+    r = random.Random(seed)
+    items = []
+    for c in range(clusters):
+        ok = r.random() < rate
+        items += [(f"s{c}", ok)] * r.randint(1, 6)
+    return items
+
+
 def test_bootstrap_is_deterministic_for_a_seed():
-    items = _clustered(0, 80, 0.3, 0.2)
+    items = _agreeing(0, 80, 0.3)
     a = cluster_bootstrap_ci(items, seed=7)
     b = cluster_bootstrap_ci(items, seed=7)
     c = cluster_bootstrap_ci(items, seed=8)
@@ -172,8 +183,9 @@ def test_bootstrap_contains_point_and_bounds():
     lo, hi = cluster_bootstrap_ci(items, seed=0)
     assert 0.0 <= lo <= point <= hi <= 1.0
     assert cluster_bootstrap_ci([], seed=0) == (0.0, 1.0)
-    assert cluster_bootstrap_ci([("a", False), ("b", False)]) == (0.0, 0.0)
-    assert cluster_bootstrap_ci([("a", True), ("b", True)]) == (1.0, 1.0)
+    # no violations (all violating): the Wilson interval at two clusters, not a point (issue 12)
+    assert cluster_bootstrap_ci([("a", False), ("b", False)]) == wilson_interval(0, 2)
+    assert cluster_bootstrap_ci([("a", True), ("b", True)]) == wilson_interval(2, 2)
 
 
 def test_bootstrap_with_singleton_clusters_is_close_to_wilson():
@@ -232,3 +244,99 @@ def test_bootstrap_bad_arguments():
         cluster_bootstrap_ci([("a", True)], level=1.0)
     with pytest.raises(ValueError):
         cluster_bootstrap_ci([("a", True)], n_boot=0)
+
+
+# --------------------------------------------------------------------------- cluster interval floor (issue 12)
+# The cluster interval must contain the Wilson interval of the same rate at the effective sample
+# size n_eff (the number of clusters). Reference implementation: statsmodels'
+# proportion_confint(method="wilson"), given the count as rate * n_eff (it uses count / nobs only).
+
+
+def _wilson_eff(items):
+    from statsmodels.stats.proportion import proportion_confint
+
+    n_eff = len({c for c, _ in items})
+    rate = sum(ok for _, ok in items) / len(items)
+    return proportion_confint(rate * n_eff, n_eff, alpha=0.05, method="wilson")
+
+
+def _sized(outcomes_and_sizes):
+    """One cluster per (outcome, size): ``size`` pairs that all share ``outcome``."""
+    items = []
+    for c, (ok, size) in enumerate(outcomes_and_sizes):
+        items += [(f"s{c}", ok)] * size
+    return items
+
+
+def test_cluster_interval_with_no_violations_is_wilson_at_the_cluster_count():
+    # 8 sources of 5 pairs, none violated: before the fix the bootstrap gave (0.0, 0.0).
+    items = _sized([(False, 5)] * 8)
+    lo, hi = cluster_bootstrap_ci(items, seed=0)
+    ref = _wilson_eff(items)
+    assert (lo, hi) == pytest.approx(ref, abs=1e-12)
+    assert lo == 0.0 and hi == pytest.approx(0.3244, abs=1e-4)  # z^2 / (8 + z^2), z = 1.96
+    assert hi > wilson_interval(0, 40)[1]  # wider than Wilson over the 40 pairs
+
+
+def test_cluster_interval_with_every_pair_violated_is_wilson_at_the_cluster_count():
+    items = _sized([(True, 1), (True, 3), (True, 2), (True, 6), (True, 1)])
+    lo, hi = cluster_bootstrap_ci(items, seed=3)
+    assert (lo, hi) == pytest.approx(_wilson_eff(items), abs=1e-12)
+    assert hi == 1.0 and lo < wilson_interval(13, 13)[0] < 1.0
+
+
+def test_cluster_interval_when_every_cluster_has_one_rate():
+    # Each source: one of its two pairs violated. Every resample has the rate 0.5, so the bootstrap
+    # is degenerate at a rate that is neither 0 nor 1; statsmodels gets the count 0.5 * 12 = 6.
+    items = []
+    for c in range(12):
+        items += [(c, True), (c, False)]
+    got = cluster_bootstrap_ci(items, seed=0)
+    assert got == pytest.approx(_wilson_eff(items), abs=1e-12)
+    assert got[0] < 0.5 < got[1]
+
+
+def test_cluster_interval_keeps_the_bootstrap_where_it_is_already_wider():
+    # 30 single-pair sources (9 violated) and 10 sources of 12 pairs (4 violated): the big sources
+    # swing the rate, so the percentile bootstrap is wider than Wilson at 40 clusters on both sides
+    # and is returned as it is.
+    items = _sized([(i < 9, 1) for i in range(30)] + [(c < 4, 12) for c in range(10)])
+    lo, hi = cluster_bootstrap_ci(items, seed=0)
+    w_lo, w_hi = _wilson_eff(items)
+    assert lo < w_lo - 0.05 and hi > w_hi + 0.05
+    # A naive cluster bootstrap written out here (random.choices over the clusters, percentile
+    # interval; Efron & Tibshirani 1993, ch. 13) agrees up to Monte Carlo error.
+    groups: dict[str, list[bool]] = {}
+    for cid, ok in items:
+        groups.setdefault(cid, []).append(ok)
+    clusters = list(groups.values())
+    r = random.Random(11)
+    rates = []
+    for _ in range(4000):
+        pick = r.choices(clusters, k=len(clusters))
+        rates.append(sum(map(sum, pick)) / sum(map(len, pick)))
+    ref_lo, ref_hi = np.quantile(rates, [0.025, 0.975])
+    assert abs(lo - ref_lo) < 0.03 and abs(hi - ref_hi) < 0.03
+
+
+@pytest.mark.parametrize("seed", range(40))
+def test_cluster_interval_contains_both_wilson_intervals(seed):
+    # Any clustered data: the interval contains Wilson at n_eff and so the plain Wilson interval
+    # over the items (a Wilson interval at a smaller n contains the one at a larger n).
+    r = random.Random(seed)
+    rate = r.choice([0.0, 0.02, 0.3, 0.5, 0.97, 1.0])
+    items = _clustered(seed, r.randint(1, 40), rate, r.choice([0.0, 0.3]))
+    k = sum(ok for _, ok in items)
+    lo, hi = cluster_bootstrap_ci(items, seed=seed, n_boot=300)
+    w_lo, w_hi = _wilson_eff(items)
+    assert lo <= w_lo + 1e-12 and hi >= w_hi - 1e-12
+    p_lo, p_hi = wilson_interval(k, len(items))
+    assert lo <= p_lo + 1e-12 and hi >= p_hi - 1e-12
+
+
+def test_cluster_interval_at_another_level_uses_that_levels_wilson():
+    from statsmodels.stats.proportion import proportion_confint
+
+    items = _sized([(False, 3)] * 10)
+    got = cluster_bootstrap_ci(items, seed=0, level=0.90)
+    assert got == pytest.approx(proportion_confint(0, 10, alpha=0.10, method="wilson"), abs=1e-12)

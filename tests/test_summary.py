@@ -170,3 +170,22 @@ def test_summarize_after_real_scoring():
     neg = s.families["negation"]
     assert (neg.pairs, neg.not_applicable, neg.applicable, neg.violations) == (3, 1, 2, 2)
     assert s.families["reorder"].violations == 0
+
+
+def test_cluster_interval_counts_sources_with_an_applicable_pair():
+    # Issue 12: with no violations the cluster interval was (0.0, 0.0). It is now the Wilson interval
+    # at the effective sample size: 6 sources with applicable pairs (4 pairs each, none violated);
+    # 3 more sources whose pairs are all n/a (neutral) do not count towards the violation interval,
+    # but do count towards the flip interval. Reference: statsmodels' proportion_confint (Wilson).
+    from statsmodels.stats.proportion import proportion_confint
+
+    vs = [V(s * 4 + j, src=f"src{s}") for s in range(6) for j in range(4)]
+    vs += [V(100 + s * 2 + j, src=f"flat{s}", sp="neutral", vp="neutral", verdict="n/a")
+           for s in range(3) for j in range(2)]
+    g = summarize(R(vs), cluster="source").families["negation"]
+    assert (g.applicable, g.violations) == (24, 0)
+    assert g.ci95 == pytest.approx(proportion_confint(0, 6, method="wilson"), abs=1e-12)
+    assert g.ci95[1] > 0.3
+    # flips: 24 of 30 pairs over all 9 sources; the interval contains Wilson at 9 sources
+    w_lo, w_hi = proportion_confint(24 / 30 * 9, 9, method="wilson")
+    assert g.flip_ci95[0] <= w_lo + 1e-12 and g.flip_ci95[1] >= w_hi - 1e-12
