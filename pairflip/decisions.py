@@ -20,7 +20,7 @@ from __future__ import annotations
 
 import json
 import os
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any, Iterable, TypeVar
 
@@ -204,10 +204,11 @@ class VettedCounts:
     rejected: int = 0  # left out
     changed: int = 0  # expectation changed
     accepted: int = 0  # accepted as they were
+    rejected_by_rule: dict[str, int] = field(default_factory=dict)
 
-    def to_dict(self) -> dict[str, int]:
+    def to_dict(self) -> dict[str, Any]:
         return {"total": self.total, "vetted": self.vetted, "rejected": self.rejected,
-                "changed": self.changed, "accepted": self.accepted}
+                "changed": self.changed, "accepted": self.accepted, "rejected_by_rule": dict(self.rejected_by_rule)}
 
     def sentence(self) -> str:
         return (f"vetted {self.vetted} of {self.total} pairs: {self.rejected} rejected and left out, "
@@ -231,6 +232,8 @@ def apply_decisions(items: Iterable[T], decisions: dict[str, Decision]) -> tuple
         counts.vetted += 1
         if d.decision == "reject":
             counts.rejected += 1
+            rule = str(getattr(item, "rule", ""))
+            counts.rejected_by_rule[rule] = counts.rejected_by_rule.get(rule, 0) + 1
             continue
         if d.decision == "change" and d.should is not None:
             counts.changed += 1

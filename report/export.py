@@ -114,6 +114,10 @@ def _stat_props(s: GroupStats) -> dict[str, Any]:
         "should": s.should, "pairs": s.pairs, "applicable": s.applicable, "violations": s.violations,
         "violation_rate": f"{s.violation_rate:.6f}", "ci95_low": f"{s.ci95[0]:.6f}", "ci95_high": f"{s.ci95[1]:.6f}",
         "flips": s.flips, "flip_rate": f"{s.flip_rate:.6f}", "not_applicable": s.not_applicable,
+        **({"vetted": s.vetted, "rejected": s.rejected,
+            "confirmed_violations": s.confirmed.violations if s.confirmed is not None else 0,
+            "confirmed_applicable": s.confirmed.applicable if s.confirmed is not None else 0}
+           if s.confirmed is not None or s.rejected else {}),
     }
 
 
@@ -218,7 +222,7 @@ def to_markdown(summary_or_list: Summary | Sequence[Summary], gate: Any = None, 
         gm = _gate_map(gates[0]) if gates else {}
         out.append(f"### pairflip · {md(s.model_name)}")
         out.append("")
-        out.append(" · ".join(f"{k} {md(v)}" for k, v in header_facts(s) if k in ("suite", "scored", "interval", "accuracy")))
+        out.append(" · ".join(f"{k} {md(v)}" for k, v in header_facts(s) if k in ("suite", "scored", "interval", "accuracy", "vetted")))
         out.append("")
         head = "| family | should | pairs | flip % | violation % | 95 % CI | n/a |" + (" gate |" if gates else "")
         out.append(head)

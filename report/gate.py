@@ -30,7 +30,8 @@ What is judged: ``--on point`` the rate itself, ``--on upper``/``lower`` the bou
 interval (Wilson, or with ``--cluster source`` the source-cluster bootstrap, which is never
 narrower than the Wilson interval at the number of sources, so never less cautious). ``upper`` is the
 cautious choice for ``<=`` limits on small suites: the gate passes only when the data show the
-rate is below the limit.
+rate is below the limit. ``--on confirmed`` (with ``--vetted``) judges the rate over the pairs a
+person accepted only: violations there are the model's, not the suite's.
 
 Errors, not silent passes: a family or rule that is not in the results; a ``violation`` limit on
 a diagnostic rule (should ``none``, e.g. ``reorder/shuffle``) or on a family whose rules are all
@@ -55,7 +56,7 @@ from pairflip.report.summary import GroupStats, Summary
 
 OPS = ("<=", ">=", "<", ">")
 METRICS = ("flip", "violation")
-ON = ("point", "upper", "lower")
+ON = ("point", "upper", "lower", "confirmed")
 TOML_TABLE = "[tool.pairflip.gate]"
 TOML_KEYS = ("limits", "on", "alpha")
 
@@ -351,17 +352,24 @@ def check(summary: Summary, limits: Sequence[Limit], *, on: str = "point") -> li
     """Judge each limit against ``summary``; raises :class:`PairflipError` for a limit that does
     not apply to these results (unknown family or rule, violation limit on a diagnostic rule)."""
     if on not in ON:
-        raise PairflipError(f"--on {on!r}: expected point, upper or lower")
+        raise PairflipError(f"--on {on!r}: expected one of {', '.join(ON)}")
+    if on == "confirmed" and summary.vetted is None:
+        raise PairflipError("--on confirmed judges only pairs a person accepted: pass --vetted FILE "
+                            "(a decisions file from `pairflip vet`)")
     groups = [_group(summary, lim) for lim in limits]  # every error before any verdict
     out = []
     for lim, g in zip(limits, groups):
+        if on == "confirmed":  # the point estimate over the vetted pairs only
+            g = g.confirmed if g.confirmed is not None else type(g)(should=g.should)
         if lim.metric == "violation":
             point, (lo, hi), count = g.violation_rate, g.ci95, g.applicable
         else:
             point, (lo, hi), count = g.flip_rate, g.flip_ci95, g.pairs
-        x = {"point": point, "upper": hi, "lower": lo}[on]
+        x = {"point": point, "upper": hi, "lower": lo, "confirmed": point}[on]
         if count == 0:
             note = f"no applicable pairs ({g.not_applicable} n/a): nothing to judge"
+            if on == "confirmed":
+                note = "no vetted pair a person accepted: nothing confirmed to judge (vet some with `pairflip vet`)"
             out.append(LimitOutcome(lim, x, False, g, point, (lo, hi), count, note))
             continue
         out.append(LimitOutcome(lim, x, lim.holds(x), g, point, (lo, hi), count))
@@ -435,7 +443,7 @@ def run_gate(
     on = on or "point"
     alpha = 0.05 if alpha is None else float(alpha)
     if on not in ON:
-        raise PairflipError(f"--on {on!r}: expected point, upper or lower")
+        raise PairflipError(f"--on {on!r}: expected one of {', '.join(ON)}")
     if not 0 < alpha < 1:
         raise PairflipError(f"--alpha {alpha}: expected a number between 0 and 1")
     if not parsed and baseline is None:

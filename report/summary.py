@@ -32,6 +32,12 @@ Decisions recorded here:
   the wrong way (:func:`severity`), ties (and label-only models, severity 0) by pair id.
 - ``accuracy`` is the model's accuracy on the sources that carry a gold label, each source
   counted once, with its Wilson interval.
+- With ``--vetted`` (a person's decisions, :mod:`pairflip.report.vetted`): ``vetted`` counts the
+  kept pairs a person looked at (accepted, or accepted with a changed expectation), ``rejected``
+  the pairs of the group a person rejected (left out of every other count), ``validity`` =
+  vetted / (vetted + rejected), the measured share of right pairs of that rule on this suite, and
+  ``confirmed`` holds the same counts and rates over the vetted pairs only: its ``violations`` are
+  *confirmed* violations (``gate --on confirmed`` judges them).
 """
 
 from __future__ import annotations
@@ -82,6 +88,18 @@ class GroupStats:
     by_label: dict[str, "GroupStats"] = field(default_factory=dict)  # by gold source label
     examples: list[Example] = field(default_factory=list)
     by_prediction: dict[str, "GroupStats"] = field(default_factory=dict)  # by predicted source label
+    rejected: int = 0  # pairs of this group a person rejected (--vetted); left out of the counts above
+    confirmed: "GroupStats | None" = None  # the same numbers over the pairs a person kept (--vetted)
+
+    @property
+    def vetted(self) -> int:
+        return self.confirmed.pairs if self.confirmed is not None else 0
+
+    @property
+    def validity(self) -> float | None:
+        """Share of this group's vetted pairs that a person kept; None when none was vetted."""
+        seen = self.vetted + self.rejected
+        return self.vetted / seen if seen else None
 
     @property
     def flip_rate(self) -> float:
@@ -104,6 +122,12 @@ class GroupStats:
             "not_applicable": self.not_applicable,
             "flip_ci95": [self.flip_ci95[0], self.flip_ci95[1]],
         }
+        if self.confirmed is not None or self.rejected:
+            out["vetted"] = self.vetted
+            out["rejected"] = self.rejected
+            out["validity"] = self.validity
+            if self.confirmed is not None:
+                out["confirmed"] = self.confirmed.to_dict(with_rules=False)
         if with_rules:
             out["rules"] = {r: g.to_dict(with_rules=False) for r, g in self.rules.items()}
             if self.by_label:
@@ -127,6 +151,20 @@ class Summary:
     header: dict[str, Any] = field(default_factory=dict)
 
     @property
+    def vetted(self) -> dict[str, Any] | None:
+        """What ``--vetted`` did: total, vetted, rejected, changed, accepted, path (None without it)."""
+        v = self.header.get("vetted")
+        return dict(v) if isinstance(v, dict) else None
+
+    def vetted_sentence(self) -> str | None:
+        v = self.vetted
+        if not v:
+            return None
+        changed = v.get("changed", 0)
+        return (f"vetted {v.get('vetted', 0)} of {v.get('total', 0)} pairs: {v.get('rejected', 0)} rejected and left out, "
+                f"{changed} expectation{'s' if changed != 1 else ''} changed")
+
+    @property
     def model_name(self) -> str:
         return str(self.model.get("name") or self.model.get("spec") or "model")
 
@@ -139,6 +177,7 @@ class Summary:
             "labels": self.labels,
             "accuracy": self.accuracy,
             "interval": self.interval,
+            **({"vetted": self.vetted} if self.vetted else {}),
         }
 
 
@@ -158,7 +197,8 @@ def severity(v: Verdict) -> float:
     return 0.0
 
 
-def _fill(g: GroupStats, vs: Sequence[Verdict], cluster: str | None, seed: int, n_boot: int) -> None:
+def _fill(g: GroupStats, vs: Sequence[Verdict], cluster: str | None, seed: int, n_boot: int, *,
+          vetted_run: bool = False, confirmed_pass: bool = False) -> None:
     g.pairs = len(vs)
     g.flips = sum(1 for v in vs if v.flipped)
     appl = [v for v in vs if v.verdict != "n/a" and v.should != "none"]
@@ -175,6 +215,10 @@ def _fill(g: GroupStats, vs: Sequence[Verdict], cluster: str | None, seed: int, 
     else:
         g.ci95 = wilson_interval(g.violations, g.applicable)
         g.flip_ci95 = wilson_interval(g.flips, g.pairs)
+    if vetted_run and not confirmed_pass:
+        kept = [v for v in vs if v.extra.get("vetted") in ("accept", "change")]
+        g.confirmed = GroupStats(should=g.should)
+        _fill(g.confirmed, kept, cluster, seed, n_boot, vetted_run=True, confirmed_pass=True)
 
 
 # A sentence unit's source_id (``build --unit sentence``): its text's id, ":", the sentence index.
@@ -220,6 +264,9 @@ def summarize(
     if examples < 0:
         raise PairflipError(f"--examples {examples}: expected a count >= 0")
     labels = dict(results.header.get("labels") or {})
+    vetted_info = results.header.get("vetted") if isinstance(results.header.get("vetted"), dict) else None
+    vetted_run = vetted_info is not None
+    rejected_by_rule: dict[str, int] = dict((vetted_info or {}).get("rejected_by_rule") or {})
     by_family: dict[str, list[Verdict]] = defaultdict(list)
     for v in results.verdicts:
         by_family[v.family].append(v)
@@ -229,7 +276,8 @@ def summarize(
         # (and so out of family-level gates); each still has its own row under ``rules``.
         vs = [v for v in all_vs if v.should != "none"] or all_vs
         g = GroupStats(should=_should_of(vs))
-        _fill(g, vs, cluster, seed, n_boot)
+        _fill(g, vs, cluster, seed, n_boot, vetted_run=vetted_run)
+        g.rejected = sum(n for r, n in rejected_by_rule.items() if r.split("/", 1)[0] == fam)
         by_rule: dict[str, list[Verdict]] = defaultdict(list)
         if len(vs) != len(all_vs):
             for v in all_vs:
@@ -245,7 +293,8 @@ def summarize(
                 by_gold[_gold_name(v.label, labels)].append(v)
         for rule in sorted(by_rule):
             rg = GroupStats(should=_should_of(by_rule[rule]))
-            _fill(rg, by_rule[rule], cluster, seed, n_boot)
+            _fill(rg, by_rule[rule], cluster, seed, n_boot, vetted_run=vetted_run)
+            rg.rejected = int(rejected_by_rule.get(rule, 0))
             g.rules[rule] = rg
         for target, groups in ((g.by_label, by_gold), (g.by_prediction, by_pred)):
             for lab in _label_order(groups, labels):

@@ -201,6 +201,9 @@ def header_facts(summary: Summary) -> list[tuple[str, str]]:
             f"{pct(a['rate'])} % on {a['sources']} sources with a gold label "
             f"({a['correct']} right; 95 % CI {pct(a['ci95'][0])}-{pct(a['ci95'][1])})",
         ))
+    vs = s.vetted_sentence()
+    if vs:
+        facts.append(("vetted", vs.removeprefix("vetted ")))
     created = when(s.header.get("created"))
     if created:
         facts.append(("created", created))
@@ -339,6 +342,31 @@ def label_table(summary: Summary, families: Sequence[str], g: Glyphs) -> Rendera
     title.append(" · " + "; ".join(
         {"by_label": "gold: the source's gold label", "by_prediction": "model: the model's label on it"}[a]
         for a, _ in groups), style=S_DIM)
+    return Group(title, t)
+
+
+def vetted_table(summary: Summary, families: Sequence[str], g: Glyphs) -> RenderableType | None:
+    """With --vetted: per rule, how many pairs a person kept and rejected (the rule's measured
+    validity on this suite) and the violations on kept pairs (confirmed)."""
+    if summary.vetted is None:
+        return None
+    t = _table(["family", "rule", "vetted", "rejected", "valid %", "confirmed", "conf %", "95% CI"],
+               ["left", "left", "right", "right", "right", "right", "right", "left"])
+    for fam in families:
+        fg = summary.families[fam]
+        seen = [(rule, rg) for rule, rg in sorted(fg.rules.items()) if rg.vetted or rg.rejected]
+        for i, (rule, rg) in enumerate(seen):
+            c = rg.confirmed
+            validity = rg.validity
+            if c is not None and has_expectation(rg) and c.applicable:
+                conf, rate, ci = f"{c.violations} of {c.applicable}", pct(c.violation_rate), interval(c.ci95, g)
+            else:
+                conf, rate, ci = g.dash, g.dash, ""
+            t.add_row(Text(fam if i == 0 else "", style=S_FAMILY), short_rule(rule, fam), str(rg.vetted), str(rg.rejected),
+                      pct(validity) if validity is not None else g.dash, conf, rate, Text(ci, style=S_DIM))
+    title = Text("vetted pairs", style="bold")
+    title.append(" · valid % = kept / (kept + rejected) of the pairs a person vetted; confirmed = violations "
+                 "on pairs a person accepted", style=S_DIM)
     return Group(title, t)
 
 
@@ -653,6 +681,9 @@ def build(
         lt = label_table(s, fams, g)
         if lt is not None:
             parts.append(lt)
+        vt = vetted_table(s, fams, g)
+        if vt is not None:
+            parts.append(vt)
     else:
         parts.append(compare_header(summaries))
         if not fams:

@@ -41,6 +41,8 @@ def vet_results(results: Results, vetted: str | os.PathLike[str] | None) -> Resu
     if earlier:  # scored with --vetted: the pairs rejected then are already gone; count them too
         for k in ("total", "vetted", "rejected"):
             info[k] += int(earlier.get("rejected", 0))
+        for rule, n in (earlier.get("rejected_by_rule") or {}).items():
+            info["rejected_by_rule"][rule] = info["rejected_by_rule"].get(rule, 0) + int(n)
     info["path"] = str(vetted)
     header["vetted"] = info
     return Results(header=header, verdicts=kept)
