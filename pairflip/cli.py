@@ -298,16 +298,25 @@ def score(
     batch_size: int = typer.Option(64, "--batch-size", help="Texts per model call."),
     cache: Optional[Path] = typer.Option(None, "--cache", help="SQLite prediction cache; reruns never predict a finished text again."),
     concurrency: int = typer.Option(1, "--concurrency", help="Batches in flight at once (HTTP and cmd: models)."),
-    timeout: float = typer.Option(30.0, "--timeout", help="Seconds to wait for one HTTP or cmd: batch."),
+    timeout: float = typer.Option(30.0, "--timeout", help="Deadline in seconds for one HTTP or cmd: batch as a whole (sending it and receiving the whole answer); for HTTP, per attempt."),
     retries: int = typer.Option(3, "--retries", help="Retries for HTTP 5xx and time-outs, with backoff."),
+    cache_key: Optional[str] = typer.Option(None, "--cache-key", help="Tie the --cache to this text too, such as a model version: predictions cached under another key are not used."),
     force: bool = typer.Option(False, "--force", help="Overwrite the output file if it exists."),
+    vetted: Optional[Path] = typer.Option(None, "--vetted", help="A decisions file from `pairflip vet`: rejected pairs are not scored, changed expectations applied."),
 ) -> None:
     """Run a model on both sides of every pair and judge the expectations."""
     with _guard():
+        from pairflip.probes.batching import check_run_options
+        from pairflip.probes.scoring import check_cache_key
+
+        check_run_options(batch_size=batch_size, concurrency=concurrency, timeout=timeout, retries=retries)
+        check_cache_key(cache_key)
+        if cache_key is not None and cache is None:
+            raise PairflipError(f"--cache-key {cache_key!r}: given without --cache; it names cached predictions, so pass --cache FILE too")
         counts: dict[str, int] = {}
         results = score_to_file(
             suite, model, output, labels=labels, margin=margin, batch_size=batch_size, cache=cache,
-            concurrency=concurrency, timeout=timeout, retries=retries, force=force, counts=counts,
+            concurrency=concurrency, timeout=timeout, retries=retries, force=force, counts=counts, cache_key=cache_key, vetted=vetted,
         )
         n_viol = sum(1 for v in results.verdicts if v.verdict == "violation")
         n_texts = results.header.get("texts_predicted")
@@ -315,24 +324,38 @@ def score(
             where = f"{counts['cached']} from the cache, {n_texts - counts['cached']} sent to the model"
         else:
             where = "each sent once"
+        key = ""
+        if cache:
+            covers = results.header.get("cache", {}).get("key_covers", "the model")
+            key = f"; the cache key covers {covers}" + ("" if cache_key else " (add --cache-key TEXT to tie it to a model version)")
         _err_console().print(
             f"scored {len(results.verdicts)} pairs ({n_texts} distinct texts: {where}) "
-            f"with {model}: {n_viol} violations; wrote {output}",
+            f"with {model}: {n_viol} violations; wrote {output}{key}",
             markup=False,
         )
 
 
 def score_to_file(suite_path: Path, model: str, output: Path, *, force: bool, cache: Path | None, timeout: float, retries: int,
-                  counts: dict[str, int] | None = None, **kw: Any) -> Any:
+                  counts: dict[str, int] | None = None, vetted: Path | None = None, **kw: Any) -> Any:
     """Score a suite file into a results file; ``counts["cached"]`` gets how many distinct texts
-    the cache already held."""
+    the cache already held. With ``vetted`` (a decisions file) rejected pairs are left out before
+    any prediction and changed expectations applied."""
     from pairflip.files import read_suite, write_results
     from pairflip.probes import load_model, score as _score
 
     _check_output(output, [suite_path] + ([cache] if cache else []), force)
     if cache is not None and _same_file(cache, suite_path):
         raise PairflipError(f"--cache {cache}: is the suite file itself; expected a separate SQLite file for the cache")
+    decisions = None
+    if vetted is not None:
+        from pairflip.decisions import read_decisions
+
+        decisions = read_decisions(vetted)
     suite = read_suite(suite_path)
+    if decisions is not None:
+        from pairflip.decisions import apply_decisions
+
+        suite.pairs, vetted_counts = apply_decisions(suite.pairs, decisions)
     m = load_model(model, timeout=timeout, retries=retries)
     cache_obj = None
     if cache is not None:
@@ -354,6 +377,12 @@ def score_to_file(suite_path: Path, model: str, output: Path, *, force: bool, ca
         close = getattr(m, "close", None)
         if close:
             close()
+    if decisions is not None:
+        for v in results.verdicts:
+            d = decisions.get(v.id)
+            if d is not None:
+                v.extra["vetted"] = d.decision
+        results.header["vetted"] = {**vetted_counts.to_dict(), "path": str(vetted)}
     write_results(results, output, force=True)
     return results
 
@@ -432,7 +461,7 @@ def gate(
     results: Path = typer.Argument(..., help="A results file."),
     limit: List[str] = typer.Option([], "--limit", "-l", help='A limit such as "negation.violation <= 0.10" or "reorder/shuffle.flip < 20%". Repeatable.'),
     limits_file: Optional[Path] = typer.Option(None, "--limits", help="A TOML file with [tool.pairflip.gate] limits (or a pyproject.toml)."),
-    on: Optional[str] = typer.Option(None, "--on", help="Judge the point estimate, or the upper/lower bound of the 95% interval: point (default), upper or lower."),
+    on: Optional[str] = typer.Option(None, "--on", help="Judge the point estimate, or the upper/lower bound of the 95% interval: point (default), upper or lower; confirmed: the rate over the pairs a person accepted (needs --vetted)."),
     baseline: Optional[Path] = typer.Option(None, "--baseline", help="Results of the last released model: also fail on a significant regression."),
     alpha: Optional[float] = typer.Option(None, "--alpha", help="Significance level for --baseline (Holm-adjusted McNemar; default 0.05)."),
     cluster: Optional[str] = typer.Option(None, "--cluster", help="'source': bootstrap intervals over source sentences."),
@@ -531,6 +560,7 @@ def audit(
     examples: int = typer.Option(3, "--examples"),
     force: bool = typer.Option(False, "--force", help="Overwrite files in --out-dir."),
     unit: str = typer.Option("sentence", "--unit", help="What one source is: 'sentence' (each sentence of a text, default) or 'text' (the whole text)."),
+    vetted: Optional[Path] = typer.Option(None, "--vetted", help="A decisions file from `pairflip vet` (pair ids carry over to a rebuilt suite): rejected pairs are not scored."),
 ) -> None:
     """build + score + show (+ gate when --limit or --limits is given) in one go."""
     with _guard():
@@ -564,7 +594,7 @@ def audit(
         render_build_stats(stats, suite_path, _err_console())
         results = score_to_file(
             suite_path, model, results_path, labels=labels, margin=margin, batch_size=batch_size, cache=cache,
-            concurrency=concurrency, timeout=timeout, retries=retries, force=force,
+            concurrency=concurrency, timeout=timeout, retries=retries, force=force, vetted=vetted,
         )
         from pairflip.report import render, summarize
 

@@ -15,24 +15,36 @@ SPEC forms (see :func:`load_model`):
 Python objects can be passed directly to :func:`as_model` (``pairflip.score(suite, model)``).
 
 Every model has a ``fingerprint()``: the prediction cache key. It changes when the model does
-(file bytes for a joblib file, module source and pickled state for a Python object, the command
-and its program and script for ``cmd:``); an HTTP model is fingerprinted by its URL only. A Python
-object's pickle is written so that it is the same in every process (sets sorted, memory addresses
+(file bytes for a joblib file, the source of the model's code and its pickled state for a Python
+object, the command and its program and script for ``cmd:``); an HTTP model is fingerprinted by
+its URL only. ``key_covers`` says the same in words (``pairflip score`` prints it), and
+``--cache-key TEXT`` ties the key to anything else, such as a model version.
+
+A Python object's code is the source of its own module and of every module of the model's own
+code that is loaded (:func:`code_closure`): the modules of the same top-level package, every
+module the import loaded that lives outside the standard library and site-packages, and the
+modules such code refers to; so editing a helper module the model imports changes the key.
+The pickle is written so that it is the same in every process (sets sorted, memory addresses
 left out), so a rerun finds the cache the last run wrote.
 """
 
 from __future__ import annotations
 
+import functools
 import hashlib
 import importlib
 import io
-import inspect
 import os
 import pickle
+import site
 import sys
-from typing import Any, Sequence
+import sysconfig
+import types
+from typing import Any, Iterable, Sequence
 
-from pairflip.probes.batching import ModelError, build_predictions, outputs_from_items, paused_gc
+from pairflip.probes.batching import (
+    ModelError, build_predictions, check_run_options, exit_from_model, outputs_from_items, paused_gc,
+)
 from pairflip.records import PairflipError, Prediction
 
 SPEC_FORMS = "path/model.joblib, package.module:name, http://host:port/path or cmd:COMMAND"
@@ -47,9 +59,15 @@ class Model:
     kind: str = "model"
     classes: list[str] | None = None
     parallel: bool = False  # may several batches run at once (threads)?
+    key_covers: str = "the model SPEC only"  # what fingerprint() is made of, in words
 
     def predict(self, texts: list[str]) -> Sequence[Prediction]:  # pragma: no cover - interface
         raise NotImplementedError
+
+    # Optional, looked up with getattr by the batch runner and the scorer (cmd: and HTTP models):
+    #   finish(): the last batch is in; raise ModelError if the answers turn out to be wrong
+    #   abort(): the run is ending on an error or an interrupt; stop the batches in flight now
+    #   doubtful(): after a failed run, the texts whose predictions can no longer be trusted
 
     def fingerprint(self) -> str:
         return hashlib.sha256(self.spec.encode("utf-8")).hexdigest()
@@ -84,7 +102,7 @@ class PythonModel(Model):
     kind = "python"
 
     def __init__(self, obj: Any, spec: str | None = None, name: str | None = None, *, fingerprint: str | None = None,
-                 labels_from: str = "proba") -> None:
+                 labels_from: str = "proba", code_modules: Iterable[str] = (), key_covers: str | None = None) -> None:
         if labels_from not in ("proba", "predict"):
             raise PairflipError(f"labels_from={labels_from!r}: expected 'proba' or 'predict'")
         self.labels_from = labels_from
@@ -105,6 +123,8 @@ class PythonModel(Model):
             except (ModelError, TypeError) as err:
                 raise PairflipError(f"model {self.spec}: classes_ {raw_classes!r} are not labels ({err})") from None
         self._fp = fingerprint
+        self._code_modules = list(code_modules)  # loaded by the import that made the object
+        self._covers = key_covers
 
     def predict(self, texts: list[str]) -> Sequence[Prediction]:
         obj = self.obj
@@ -137,8 +157,14 @@ class PythonModel(Model):
 
     def fingerprint(self) -> str:
         if self._fp is None:
-            self._fp = _object_fingerprint(self.obj, self.spec)
+            self._fp, self._covers = _object_fingerprint(self.obj, self.spec, self._code_modules)
         return self._fp
+
+    @property
+    def key_covers(self) -> str:  # type: ignore[override]
+        if self._covers is None:
+            self.fingerprint()
+        return self._covers or "the model SPEC"
 
 
 def labels_are_items(xs: Any) -> bool:
@@ -154,24 +180,111 @@ def _is_sequence(x: Any) -> bool:
     return hasattr(x, "__len__") and hasattr(x, "__getitem__") and not isinstance(x, (str, bytes, dict))
 
 
-def _object_fingerprint(obj: Any, spec: str) -> str:
-    """Spec + the source file of the object's module + the object's pickled state, when any."""
+def _object_fingerprint(obj: Any, spec: str, code_modules: Iterable[str] = ()) -> tuple[str, str]:
+    """Spec + the source of the object's code (:func:`code_closure`) + the object's pickled state,
+    when it has one; and what that covers, in words."""
     h = hashlib.sha256(spec.encode("utf-8"))
-    mod = sys.modules.get(getattr(obj, "__module__", None) or type(obj).__module__)
-    try:
-        src = inspect.getsourcefile(mod) if mod is not None else None
-    except TypeError:
-        src = None
-    if src and os.path.isfile(src):
-        with open(src, "rb") as fh:
-            h.update(fh.read())
+    own = getattr(obj, "__module__", None) or type(obj).__module__
+    modules = code_closure([own, *code_modules], own=own)
+    h.update(hash_module_files(modules).encode())
     try:
         buf = io.BytesIO()
         _StablePickler(buf, protocol=4).dump(obj)
         h.update(buf.getvalue())
-    except Exception:  # lambdas, closures: the source file and spec have to do
+        state = "the object's pickled state"
+    except Exception:  # lambdas, closures: the source files and spec have to do
         h.update(type(obj).__qualname__.encode())
+        state = "the object's type name (it cannot be pickled)"
+    return h.hexdigest(), f"{describe_modules(modules)} and {state}" if modules else f"the model SPEC and {state}"
+
+
+@functools.lru_cache(maxsize=1)
+def _library_roots() -> tuple[str, ...]:
+    """Folders of installed code: the standard library and site-packages (none of it is the
+    model's own code, and hashing it would only slow every run down)."""
+    roots = set()
+    paths = sysconfig.get_paths()
+    for key in ("stdlib", "platstdlib", "purelib", "platlib"):
+        if paths.get(key):
+            roots.add(os.path.realpath(paths[key]))
+    try:
+        roots.update(os.path.realpath(p) for p in site.getsitepackages())
+        roots.add(os.path.realpath(site.getusersitepackages()))
+    except AttributeError:  # pragma: no cover - a virtualenv's old site.py
+        pass
+    return tuple(sorted(roots))
+
+
+def _own_file(mod: Any) -> str | None:
+    """The file of a module of the user's own code, else None (built-in, frozen, the standard
+    library, site-packages, pairflip itself)."""
+    name = getattr(mod, "__name__", "")
+    if not isinstance(name, str) or name.partition(".")[0] == "pairflip":
+        return None
+    path = getattr(mod, "__file__", None)
+    if not isinstance(path, str) or "site-packages" in path or not os.path.isfile(path):
+        return None
+    real = os.path.realpath(path)
+    parts = real.split(os.sep)
+    if "site-packages" in parts or "dist-packages" in parts:
+        return None
+    if any(real == r or real.startswith(r + os.sep) for r in _library_roots()):
+        return None
+    return real
+
+
+def code_closure(seeds: Iterable[str], *, own: str | None = None) -> list[str]:
+    """The names of the loaded modules that make up a model's own code, sorted: the ``seeds``
+    (the object's module, the modules its import loaded), every loaded module of the same
+    top-level package as ``own``, and, transitively, the modules their names refer to
+    (imported modules, and the modules of imported functions and classes). Only the user's own
+    files count (see :func:`_own_file`); ``own`` itself always counts when it has a file."""
+    todo = [s for s in seeds if isinstance(s, str)]
+    if own:
+        top = own.partition(".")[0]
+        todo += [n for n in list(sys.modules) if n == top or n.startswith(top + ".")]
+    found: set[str] = set()
+    seen: set[str] = set()
+    while todo:
+        name = todo.pop()
+        if name in seen:
+            continue
+        seen.add(name)
+        mod = sys.modules.get(name)
+        if mod is None or (_own_file(mod) is None and not (name == own and getattr(mod, "__file__", None))):
+            continue
+        found.add(name)
+        for value in list(vars(mod).values()):
+            if isinstance(value, types.ModuleType):
+                todo.append(value.__name__)
+                continue
+            try:
+                ref = getattr(value, "__module__", None)
+            except Exception:  # an object whose attribute lookup fails: nothing to follow
+                continue
+            if isinstance(ref, str) and ref not in seen:
+                todo.append(ref)
+    return sorted(found)
+
+
+def hash_module_files(modules: Iterable[str]) -> str:
+    """SHA-256 over each module's name and the bytes of its file, in the order given."""
+    h = hashlib.sha256()
+    for name in modules:
+        h.update(name.encode("utf-8") + b"\0")
+        path = getattr(sys.modules.get(name), "__file__", None)
+        try:
+            if path and os.path.getsize(path) <= 64 << 20:
+                with open(path, "rb") as fh:
+                    h.update(hashlib.sha256(fh.read()).digest())
+        except OSError:
+            pass
     return h.hexdigest()
+
+
+def describe_modules(modules: Sequence[str], shown: int = 4) -> str:
+    names = ", ".join(modules[:shown]) + (f" and {len(modules) - shown} more" if len(modules) > shown else "")
+    return f"the source of {len(modules)} module{'s' if len(modules) != 1 else ''} ({names})"
 
 
 # State that differs from process to process for the same fitted model: scikit-learn's text
@@ -216,12 +329,19 @@ def import_model(spec: str) -> PythonModel:
     cwd = os.getcwd()
     if cwd not in sys.path and "" not in sys.path:
         sys.path.append(cwd)
+    before = set(sys.modules)
     try:
         mod = importlib.import_module(mod_name)
     except ModuleNotFoundError as err:
         raise PairflipError(f"--model {spec}: cannot import module {mod_name!r} ({err})") from None
     except Exception as err:
         raise PairflipError(f"--model {spec}: importing module {mod_name!r} raised {type(err).__name__}: {err}") from None
+    except (SystemExit, KeyboardInterrupt) as err:
+        what = exit_from_model(err)
+        if what is None:
+            raise
+        raise PairflipError(f"--model {spec}: importing module {mod_name!r} {_what_code_did(what)}") from None
+    loaded = [n for n in sys.modules if n not in before]
     obj: Any = mod
     for part in attr.split("."):
         if not hasattr(obj, part):
@@ -234,22 +354,34 @@ def import_model(spec: str) -> PythonModel:
             raise PairflipError(
                 f"--model {spec}: {attr} is a class and making one without arguments raised {type(err).__name__}: {err}"
             ) from None
+        except (SystemExit, KeyboardInterrupt) as err:
+            what = exit_from_model(err)
+            if what is None:
+                raise
+            raise PairflipError(f"--model {spec}: making a {attr} without arguments {_what_code_did(what)}") from None
     if not (callable(obj) or hasattr(obj, "predict")):
         raise PairflipError(
             f"--model {spec}: {attr} is a {type(obj).__name__}, expected a callable list[str] -> labels "
             f"or an object with a predict method"
         )
-    return PythonModel(obj, spec=spec)
+    return PythonModel(obj, spec=spec, code_modules=loaded)
+
+
+def _what_code_did(what: str) -> str:
+    """'the model called sys.exit(2)' -> 'called sys.exit(2)'."""
+    return what.removeprefix("the model ")
 
 
 def load_model(spec: str, *, timeout: float = 30.0, retries: int = 3, **options: Any) -> Model:
     """Turn a SPEC string into a model (see the module docstring for the forms).
 
-    ``timeout`` (seconds per batch) and ``retries`` apply to HTTP models; ``timeout`` also to
-    ``cmd:`` models. Other ``options`` go to the HTTP or command adapter.
+    ``timeout`` (a deadline in seconds for a batch as a whole: for HTTP, for each attempt) and
+    ``retries`` apply to HTTP models; ``timeout`` also to ``cmd:`` models. Both are checked for
+    every SPEC. Other ``options`` go to the HTTP or command adapter.
     """
     if not isinstance(spec, str) or not spec.strip():
         raise PairflipError(f"--model {spec!r}: empty; expected {SPEC_FORMS}")
+    check_run_options(timeout=timeout, retries=retries)
     spec = spec.strip()
     if spec.startswith(("http://", "https://")):
         from pairflip.probes.http_model import HttpModel

@@ -13,6 +13,7 @@ from __future__ import annotations
 
 import gc
 import math
+import signal
 from contextlib import contextmanager
 from concurrent.futures import FIRST_COMPLETED, Future, ThreadPoolExecutor, wait
 from collections.abc import Mapping
@@ -20,12 +21,34 @@ from typing import Any, Callable, Iterator, Sequence
 
 from pairflip.labels import PROBABILITY_TOLERANCE, normalise_label
 from pairflip.probes.outputs import Outputs
-from pairflip.records import PairflipError, Prediction
+from pairflip.records import Interrupted, PairflipError, Prediction
 
 
 class ModelError(PairflipError):
     """A model failed or answered badly. Adapters raise it without context; :func:`run_batches`
-    adds the model SPEC and the batch."""
+    adds the model SPEC and the batch.
+
+    ``retract`` lists texts whose predictions, given earlier in the run, can no longer be trusted
+    (a ``cmd:`` process whose answers turned out to be out of step with its requests); the
+    caller removes them from the prediction cache.
+    """
+
+    def __init__(self, message: str, *, retract: Sequence[str] = ()) -> None:
+        super().__init__(message)
+        self.retract = list(retract)
+
+
+def check_run_options(*, batch_size: Any = None, concurrency: Any = None, timeout: Any = None,
+                      retries: Any = None) -> None:
+    """The options that shape a run, checked before any work (None: not given)."""
+    for name, value, least in (("batch-size", batch_size, 1), ("concurrency", concurrency, 1), ("retries", retries, 0)):
+        if value is not None and (isinstance(value, bool) or not isinstance(value, int) or value < least):
+            raise PairflipError(f"--{name} must be a whole number >= {least}, got {value!r}")
+    if timeout is not None and (
+        isinstance(timeout, bool) or not isinstance(timeout, (int, float)) or not math.isfinite(timeout) or timeout <= 0
+    ):
+        shown = f"{timeout:g}" if isinstance(timeout, float) else repr(timeout)
+        raise PairflipError(f"--timeout must be a finite number of seconds > 0, got {shown}")
 
 
 # --------------------------------------------------------------------------- raw output -> Prediction
@@ -316,18 +339,55 @@ def _where(model: Any, index: int, total: int, batch: Sequence[str]) -> str:
 
 
 def call_batch(model: Any, batch: Sequence[str], index: int, total: int) -> Outputs:
-    """One checked model call; every failure becomes a PairflipError naming model and batch."""
+    """One checked model call; every failure becomes a PairflipError naming model and batch.
+
+    ``sys.exit()`` and a ``KeyboardInterrupt`` raised by the model's own code are failures of the
+    model too (see :func:`exit_from_model`); a real Ctrl-C or SIGTERM passes through."""
     try:
         out = model.predict(list(batch))
         return check_outputs(batch, out)
     except ModelError as err:
-        raise PairflipError(f"{_where(model, index, total, batch)}: {err}") from None
+        raise ModelError(f"{_where(model, index, total, batch)}: {err}", retract=err.retract) from None
     except PairflipError:
         raise
     except Exception as err:
         raise PairflipError(
             f"{_where(model, index, total, batch)}: the model raised {type(err).__name__}: {err}"
         ) from err
+    except (SystemExit, KeyboardInterrupt) as err:
+        what = exit_from_model(err)
+        if what is None:
+            raise
+        raise ModelError(f"{_where(model, index, total, batch)}: {what}") from None
+
+
+def exit_from_model(err: BaseException) -> str | None:
+    """What a ``SystemExit`` or ``KeyboardInterrupt`` that came out of model code means: a
+    sentence saying what the model did, or None when it is a real interrupt to pass on.
+
+    ``sys.exit()`` in a model is always the model's doing (passing it on would end a CI run with
+    exit 0 and nothing checked). A ``KeyboardInterrupt`` is a real interrupt when it is
+    :class:`~pairflip.records.Interrupted` (raised by the command line's signal handler), or when
+    Python's own SIGINT handler is in force (then a Ctrl-C arrives as a plain KeyboardInterrupt,
+    e.g. in a notebook), or when SIGINT is ignored (the command line ignores further signals while
+    it cleans up after the first). Under any other handler, such as the command line's, a plain
+    KeyboardInterrupt was raised by the model's code."""
+    if isinstance(err, SystemExit):
+        code = err.code
+        if code is None:
+            return "the model called sys.exit()"
+        if isinstance(code, int):
+            return f"the model called sys.exit({code})"
+        return f"the model called sys.exit with the message {str(code)!r}"
+    if isinstance(err, Interrupted):
+        return None
+    try:
+        handler = signal.getsignal(signal.SIGINT)
+    except ValueError:  # pragma: no cover - no signals here
+        return None
+    if handler is signal.default_int_handler or handler == signal.SIG_IGN:
+        return None
+    return "the model raised KeyboardInterrupt (pairflip received no Ctrl-C or SIGTERM: the model's own code raised it)"
 
 
 # --------------------------------------------------------------------------- running batches
@@ -343,8 +403,7 @@ def run_batches(
     any order. In-process Python models always run one batch at a time. On the first failure,
     batches not yet started are cancelled and the error is raised.
     """
-    if not isinstance(concurrency, int) or concurrency < 1:
-        raise PairflipError(f"--concurrency must be a whole number >= 1, got {concurrency!r}")
+    check_run_options(concurrency=concurrency)
     total = len(batches)
     if concurrency == 1 or total <= 1 or not getattr(model, "parallel", False):
         for i, b in enumerate(batches):
@@ -353,6 +412,7 @@ def run_batches(
     pool = ThreadPoolExecutor(max_workers=concurrency, thread_name_prefix="pairflip-batch")
     running: dict[Future[Outputs], int] = {}
     next_i = 0
+    ended = False
     try:
         while next_i < total or running:
             while next_i < total and len(running) < concurrency:
@@ -369,6 +429,14 @@ def run_batches(
                 yield i, batches[i], fut.result()  # finished batches reach the cache first
             if failed is not None:
                 raise failed
+        ended = True
     finally:
-        # On an error (or the caller stopping early) do not wait for the batches in flight.
+        # On an error, an interrupt or the caller stopping early, do not wait for the batches in
+        # flight: cut them off (the model's abort() ends its requests and processes at once), so
+        # that the threads end now rather than at --timeout, and Python's exit does not wait
+        # for them.
         pool.shutdown(wait=False, cancel_futures=True)
+        if not ended and any(not f.done() for f in running):
+            abort = getattr(model, "abort", None)
+            if abort is not None:
+                abort()

@@ -133,6 +133,21 @@ class PredictionCache:
             self._db.executemany("INSERT OR REPLACE INTO predictions VALUES (?, ?, ?, ?, ?)", rows)
         return len(rows)
 
+    def delete_many(self, fingerprint: str, texts: Iterable[str]) -> int:
+        """Remove this model's predictions of ``texts`` (ones found wrong after they were stored)
+        and commit at once; returns how many rows were removed."""
+        keys = sorted({text_key(t) for t in texts})
+        removed = 0
+        with self._lock, self._db:
+            for i in range(0, len(keys), _CHUNK):
+                chunk = keys[i : i + _CHUNK]
+                cur = self._db.execute(
+                    f"DELETE FROM predictions WHERE fingerprint = ? AND text_sha256 IN ({','.join('?' * len(chunk))})",
+                    [fingerprint, *chunk],
+                )
+                removed += cur.rowcount
+        return removed
+
     def count(self, fingerprint: str | None = None) -> int:
         with self._lock:
             if fingerprint is None:

@@ -9,15 +9,20 @@ loads only the one file the user names on the command line, never a file it find
 name only model files you trust.
 
 The model's fingerprint (its prediction cache key) is the SHA-256 of the file's bytes, so a
-retrained model saved over the same path never reuses stale cached predictions.
+retrained model saved over the same path never reuses stale cached predictions. When loading
+the file imports modules of the user's own code (a custom transformer class, a tokenizer
+function; see :func:`pairflip.probes.adapters.code_closure`), their source is part of the key
+too, so editing them does not serve stale predictions either.
 """
 
 from __future__ import annotations
 
 import hashlib
+import sys
 from pathlib import Path
 
-from pairflip.probes.adapters import PythonModel
+from pairflip.probes.adapters import PythonModel, code_closure, describe_modules, hash_module_files
+from pairflip.probes.batching import exit_from_model
 from pairflip.records import PairflipError
 
 
@@ -42,6 +47,7 @@ def load_file_model(path: str | Path) -> PythonModel:
         raise PairflipError(f"--model {p}: cannot read the file ({err.strerror or err})") from None
     import joblib
 
+    before = set(sys.modules)
     try:
         obj = joblib.load(p)  # runs code stored in the pickle: only the file the user named
     except MemoryError:
@@ -51,13 +57,23 @@ def load_file_model(path: str | Path) -> PythonModel:
             f"--model {p}: cannot load the model file ({type(err).__name__}: {str(err)[:200]}); "
             f"expected a fitted scikit-learn-like model saved with joblib.dump"
         ) from None
+    except (SystemExit, KeyboardInterrupt) as err:
+        what = exit_from_model(err)
+        if what is None:
+            raise
+        raise PairflipError(f"--model {p}: loading the model file {what.removeprefix('the model ')}") from None
+    code = code_closure(n for n in sys.modules if n not in before)
     if not hasattr(obj, "predict") or not callable(getattr(obj, "predict")):
         raise PairflipError(
             f"--model {p}: the file holds a {type(obj).__module__}.{type(obj).__qualname__}, which has no "
             f"predict method; expected a fitted scikit-learn-like model (predict, optionally predict_proba and classes_)"
         )
     _check_fitted(p, obj)
-    model = PythonModel(obj, spec=str(p), name=p.stem, fingerprint=digest)
+    covers = "the bytes of the model file"
+    if code:  # the file's objects come (also) from the user's own modules
+        digest = hashlib.sha256(f"{digest}\x1f{hash_module_files(code)}".encode()).hexdigest()
+        covers += f" and {describe_modules(code)} that loading it imported"
+    model = PythonModel(obj, spec=str(p), name=p.stem, fingerprint=digest, key_covers=covers)
     model.kind = "joblib"
     return model
 

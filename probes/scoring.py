@@ -13,6 +13,7 @@ the Verdict records themselves.
 
 from __future__ import annotations
 
+import hashlib
 import math
 import sqlite3
 from typing import Any, Callable, Iterable, Sequence
@@ -20,7 +21,7 @@ from typing import Any, Callable, Iterable, Sequence
 import numpy as np
 
 from pairflip.labels import PROBABILITY_TOLERANCE, LabelMap
-from pairflip.probes.batching import paused_gc, run_batches, settled_records
+from pairflip.probes.batching import ModelError, check_run_options, paused_gc, run_batches, settled_records
 from pairflip.probes.expectations import OUTCOMES, SHOULD_CODES, judge_many
 from pairflip.probes.outputs import Outputs, Resolved, TextTable
 from pairflip.records import SHOULDS, Pair, PairflipError, Prediction, Results, Suite, Verdict, suite_sha256
@@ -59,6 +60,20 @@ def predict_all(model: Any, texts: Sequence[str], **options: Any) -> dict[str, P
     return predict_table(model, list(dict.fromkeys(texts)), **options).as_dict()
 
 
+def cache_fingerprint(model: Any, cache_key: str | None = None) -> str:
+    """The key the model's predictions are cached under: its fingerprint, tied to ``cache_key``
+    (``--cache-key``, e.g. a model version) when one is given."""
+    fp = model.fingerprint()
+    if cache_key is None:
+        return fp
+    return hashlib.sha256(f"{fp}\x1f--cache-key\x1f{cache_key}".encode("utf-8")).hexdigest()
+
+
+def check_cache_key(cache_key: Any) -> None:
+    if cache_key is not None and (not isinstance(cache_key, str) or not cache_key.strip()):
+        raise PairflipError(f"--cache-key {cache_key!r}: empty; expected a text such as a model version (v3, 2024-05-retrain)")
+
+
 def predict_table(
     model: Any,
     texts: Sequence[str],
@@ -67,18 +82,22 @@ def predict_table(
     cache: Any = None,
     concurrency: int = 1,
     on_batch: Callable[[int, int], None] | None = None,
+    cache_key: str | None = None,
 ) -> TextTable:
     """Predict each of the distinct ``texts`` once, in batches of ``batch_size``; texts already in
     ``cache`` are not sent again. Returns the outputs column-wise (:class:`TextTable`).
 
     The cache (see :mod:`pairflip.probes.cache`) is written batch by batch, so an interrupted
-    or failed run keeps every finished batch. ``on_batch(done, total)`` reports progress in texts.
+    or failed run keeps every finished batch, except predictions the model's own checks later
+    find untrustworthy (a ``cmd:`` process out of step with its requests: :class:`ModelError`
+    ``retract``), which are removed again. After the last batch the model's ``finish()`` (when it
+    has one) checks the end of its answers. ``on_batch(done, total)`` reports progress in texts.
     """
-    if isinstance(batch_size, bool) or not isinstance(batch_size, int) or batch_size < 1:
-        raise PairflipError(f"--batch-size must be a whole number >= 1, got {batch_size!r}")
+    check_run_options(batch_size=batch_size, concurrency=concurrency)
+    check_cache_key(cache_key)
     table = TextTable(texts)
     total = len(texts)
-    fp = model.fingerprint() if cache is not None else ""
+    fp = cache_fingerprint(model, cache_key) if cache is not None else ""
     todo = np.arange(total, dtype=np.intp)
     if cache is not None:
         hits = cache.get_many(fp, texts)
@@ -91,19 +110,59 @@ def predict_table(
         on_batch(done, total)
     spans = [todo[i : i + batch_size] for i in range(0, len(todo), batch_size)]
     batches = [[texts[j] for j in span.tolist()] for span in spans]
+    finished = False
     with settled_records() as settle:
-        for i, batch, out in run_batches(model, batches, concurrency=concurrency):
-            if cache is not None:
+        try:
+            for i, batch, out in run_batches(model, batches, concurrency=concurrency):
+                if cache is not None:
+                    try:
+                        cache.put_many(fp, list(zip(batch, out)))
+                    except sqlite3.Error as err:
+                        raise PairflipError(f"--cache {getattr(cache, 'path', '')}: cannot write predictions ({err})") from None
+                table.add(spans[i], out)
+                done += len(batch)
+                settle()
+                if on_batch:
+                    on_batch(done, total)
+            finish = getattr(model, "finish", None)
+            finished = True
+            if finish is not None:
                 try:
-                    cache.put_many(fp, list(zip(batch, out)))
-                except sqlite3.Error as err:
-                    raise PairflipError(f"--cache {getattr(cache, 'path', '')}: cannot write predictions ({err})") from None
-            table.add(spans[i], out)
-            done += len(batch)
-            settle()
-            if on_batch:
-                on_batch(done, total)
+                    finish()
+                except ModelError as err:
+                    raise ModelError(f"model {model.spec}: at the end of the run: {err}", retract=err.retract) from None
+        except BaseException as err:
+            retract = list(getattr(err, "retract", ()))
+            doubtful = getattr(model, "doubtful", None)
+            if not finished and doubtful is not None:  # other processes may be out of step too
+                retract += doubtful()
+            if retract and isinstance(err, ModelError):
+                raise _retracted(err, cache, fp, retract) from None
+            if retract:
+                _retracted(err, cache, fp, retract)  # an interrupt or another error stays what it was
+            raise
     return table
+
+
+def _retracted(err: BaseException, cache: Any, fp: str, retract: list[str]) -> BaseException:
+    """Remove the predictions of ``retract`` (texts that can no longer be trusted) from the
+    cache; the error, saying so."""
+    if cache is None:
+        return err
+    try:
+        n = cache.delete_many(fp, retract)
+    except sqlite3.Error as db_err:
+        return ModelError(f"{err}; removing its untrustworthy predictions from --cache {getattr(cache, 'path', '')} "
+                          f"failed ({db_err}): delete that file before the next run")
+    if not n:
+        return err
+    text = str(err)
+    rule = "" if "one line per request" in text else " (a cmd: model prints exactly one line per request)"
+    return ModelError(
+        f"{text}; {n} prediction{'s' if n != 1 else ''} given earlier in the run by processes out of step with "
+        f"their requests were removed from --cache{rule}; echo each request's \"id\" in its answer to have "
+        f"every answer checked"
+    )
 
 
 def label_map(labels: LabelMap | Sequence[str] | str | None, model: Any,
@@ -173,13 +232,15 @@ def score(
     concurrency: int = 1,
     on_batch: Callable[[int, int], None] | None = None,
     suite_path: str | None = None,
+    cache_key: str | None = None,
 ) -> Results:
     """Score a suite: ``pairflip.score(suite, model)``, model a callable, sklearn-like object or SPEC.
 
     ``labels`` (most negative first) overrides the recognised label scale; ``margin`` is the
     score change strengthen/weaken tolerate; ``batch_size`` texts go to the model per call, up to
     ``concurrency`` calls at once (HTTP and ``cmd:`` models); ``cache`` is a
-    :class:`~pairflip.probes.cache.PredictionCache`. Returns
+    :class:`~pairflip.probes.cache.PredictionCache`, whose key for this model's predictions is
+    the model's fingerprint tied to ``cache_key`` when given (``--cache-key``). Returns
     :class:`~pairflip.records.Results`: one verdict per pair and a header naming the suite
     (content hash and path), the model (``describe()``) and the label mapping used.
     """
@@ -188,13 +249,16 @@ def score(
     if isinstance(margin, bool) or not isinstance(margin, (int, float)) or not math.isfinite(margin) or margin < 0:
         raise PairflipError(f"--margin must be a number >= 0, got {margin!r}")
     given = LabelMap.from_labels(labels) if labels and not isinstance(labels, LabelMap) else labels
+    check_run_options(batch_size=batch_size, concurrency=concurrency)
+    check_cache_key(cache_key)
     pairs = list(suite)
     if not pairs:
         raise PairflipError("the suite holds no pairs; nothing to score")
     texts, si, vi, should = _index_pairs(pairs)
     m = as_model(model)
     try:
-        table = predict_table(m, texts, batch_size=batch_size, cache=cache, concurrency=concurrency, on_batch=on_batch)
+        table = predict_table(m, texts, batch_size=batch_size, cache=cache, concurrency=concurrency, on_batch=on_batch,
+                              cache_key=cache_key)
     finally:
         if not isinstance(model, Model):  # made here from a SPEC or object: stop its processes
             m.close()
@@ -204,7 +268,16 @@ def score(
         # The verdicts live as long as the results: put them in the oldest generation at once
         # rather than through two young-generation collections that walk every one of them.
         settle()
-    return _results(suite, suite_path, pairs, texts, m, lm, margin, verdicts)
+    results = _results(suite, suite_path, pairs, texts, m, lm, margin, verdicts)
+    if cache is not None:
+        results.header["cache"] = {"key_covers": key_covers(m, cache_key)}
+    return results
+
+
+def key_covers(model: Any, cache_key: str | None = None) -> str:
+    """In words, what the model's prediction cache key is made of."""
+    covers = getattr(model, "key_covers", None) or "the model SPEC"
+    return f"{covers} and --cache-key {cache_key!r}" if cache_key is not None else covers
 
 
 def _judge_all(pairs: list[Pair], si: np.ndarray, vi: np.ndarray, should: np.ndarray, r: Resolved,

@@ -136,3 +136,20 @@ def test_backoff_doubles_and_is_capped():
 def test_bad_options(url, kw, what):
     with pytest.raises(PairflipError, match=what.replace("(", r"\(").replace(")", r"\)")):
         load_model(url, **kw)
+
+
+def test_timeout_bounds_the_whole_answer_not_each_read():
+    """A server that trickles its answer one byte every 0.2 s answers every single read quickly;
+    --timeout 1 must still end the attempt after about a second, before the answer is complete
+    (the answer here is over 100 bytes, so it would take more than 20 s to arrive)."""
+    with ModelServer(faults=lambda key: ["trickle"], trickle_seconds=0.2) as srv:
+        msg = _fail(load_model(srv.url, timeout=1.0, retries=0))
+        assert srv.requests == 1 and srv.trickles_finished == 0
+    assert "no answer within --timeout 1 s" in msg and "after 1 attempt" in msg
+
+
+def test_a_trickled_answer_within_the_timeout_is_accepted():
+    with ModelServer(faults=lambda key: ["trickle"], trickle_seconds=0.001) as srv:
+        preds = load_model(srv.url, timeout=20.0, retries=0).predict(TEXTS)
+        assert srv.trickles_finished == 1
+    assert [p.label for p in preds] == [keyword_rules.label(t) for t in TEXTS]

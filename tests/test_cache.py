@@ -159,20 +159,32 @@ def test_cli_rerun_with_cache_sends_nothing_to_the_process(tmp_path):
 
 
 def test_cli_interrupt_then_resume(tmp_path, monkeypatch):
+    import signal
+
     from helpers import toy_models
 
     suite = write_test_suite(tmp_path / "suite.jsonl", 10)
     out = tmp_path / "results.jsonl"
     args = ["score", str(suite), "--model", "helpers.toy_models:interruptible", "-o", str(out),
             "--cache", str(tmp_path / "c.db"), "--batch-size", "4"]
-    monkeypatch.setattr(toy_models, "_calls", 0)
-    monkeypatch.setattr(toy_models, "interrupt_at_call", 3)
+    calls = []
+
+    def ctrl_c_at_third_call(texts):
+        # a real SIGINT, as a Ctrl-C in the terminal sends: the command line's own handler turns
+        # it into an interrupt (a `raise KeyboardInterrupt` in model code is a model failure)
+        calls.append(len(texts))
+        if len(calls) == 3:
+            signal.raise_signal(signal.SIGINT)
+        toy_models.received.extend(texts)
+        return [keyword_rules.label(t) for t in texts]
+
+    monkeypatch.setattr(toy_models, "interruptible", ctrl_c_at_third_call)
     toy_models.received.clear()
     r1 = run_cli(args)
     assert r1.code == 130 and "interrupted" in r1.stderr and not out.exists()  # 128 + SIGINT, as shells do
     first = list(toy_models.received)
     assert len(first) == 8  # two batches of 4 finished before Ctrl-C
-    monkeypatch.setattr(toy_models, "interrupt_at_call", None)
+    calls.append("no more interrupts")
     toy_models.received.clear()
     r2 = run_cli(args)
     assert r2.code == 0, r2.stderr
@@ -218,3 +230,101 @@ def test_sigint_to_a_real_run_keeps_finished_batches(tmp_path):
     resent = log.read_text(encoding="utf-8").splitlines()
     assert len(resent) == len(texts_of(make_pairs(12))) - cached
     assert set(resent) | set(sent_before) == set(texts_of(make_pairs(12)))
+
+
+
+# --------------------------------------------------------------------------- what the cache key covers
+
+
+def _write_model_package(folder, layout: str) -> tuple[str, "Path"]:
+    """A `module:name` model whose opinion words live in another file it imports: in the same
+    package (``package``), or in a plain module beside it (``module``). Returns the SPEC and the
+    words file."""
+    if layout == "package":
+        pkg = folder / "campstore"
+        pkg.mkdir()
+        (pkg / "__init__.py").write_text("", encoding="utf-8")
+        words = pkg / "words.py"
+        (pkg / "rating.py").write_text(
+            "from campstore.words import NEGATIVE\n\n"
+            "def rate(texts):\n"
+            "    return ['negative' if any(w in t.lower() for w in NEGATIVE) else 'positive' for t in texts]\n",
+            encoding="utf-8",
+        )
+        spec = "campstore.rating:rate"
+    else:
+        words = folder / "trail_words.py"
+        (folder / "trail_rating.py").write_text(
+            "import trail_words\n\n"
+            "def rate(texts):\n"
+            "    return ['negative' if any(w in t.lower() for w in trail_words.NEGATIVE) else 'positive' for t in texts]\n",
+            encoding="utf-8",
+        )
+        spec = "trail_rating:rate"
+    words.write_text("NEGATIVE = ['not', 'never', 'leaks']\n", encoding="utf-8")
+    return spec, words
+
+
+@pytest.mark.parametrize("layout", ["package", "module"])
+def test_editing_a_module_the_model_imports_changes_the_cache_key(tmp_path, layout):
+    """The cache key of a `module:name` model used to cover the named module only: edit a module
+    it imports and the rerun served the old predictions from the cache."""
+    import json as _json
+
+    from helpers.cli import run_pairflip
+
+    work = tmp_path / "work"
+    work.mkdir()
+    spec, words = _write_model_package(work, layout)
+    suite = write_test_suite(tmp_path / "suite.jsonl")
+    cache = tmp_path / "c.db"
+    n = len(texts_of(make_pairs()))
+
+    def run(name):
+        out = tmp_path / f"{name}.jsonl"
+        r = run_pairflip(["score", str(suite), "--model", spec, "-o", str(out), "--cache", str(cache)], cwd=work)
+        assert r.code == 0, r.stderr
+        return r, {v["id"]: v["source_pred"] for v in map(_json.loads, out.read_text(encoding="utf-8").splitlines()[1:])}
+
+    r1, first = run("r1")
+    assert f"{n} distinct texts: 0 from the cache, {n} sent to the model" in " ".join(r1.stderr.split())
+    assert words.stem in r1.stderr  # the closing line names what the cache key covers
+    r_same, same = run("r_same")
+    assert f"{n} from the cache, 0 sent to the model" in " ".join(r_same.stderr.split()) and same == first
+    words.write_text("NEGATIVE = ['great']\n", encoding="utf-8")  # the model changed its mind
+    r2, second = run("r2")
+    assert f"{n} distinct texts: 0 from the cache, {n} sent to the model" in " ".join(r2.stderr.split())
+    by_id = {p.id: p for p in make_pairs()}
+    for pid, pred in second.items():
+        assert pred == ("negative" if "great" in by_id[pid].source.lower() else "positive"), by_id[pid].source
+
+
+def test_cache_key_option_ties_the_cache_to_a_model_version(tmp_path):
+    suite = write_test_suite(tmp_path / "suite.jsonl", 5)
+    log = tmp_path / "received.txt"
+    n = len(texts_of(make_pairs(5)))
+    base = ["score", str(suite), "--model", line_model("--log", str(log)), "--cache", str(tmp_path / "c.db")]
+
+    def run(name, *extra):
+        r = run_cli(base + ["-o", str(tmp_path / f"{name}.jsonl"), *extra])
+        assert r.code == 0, r.stderr
+        return " ".join(r.stderr.split())
+
+    first = run("a", "--cache-key", "lantern-v1")
+    assert f"0 from the cache, {n} sent to the model" in first and "--cache-key 'lantern-v1'" in first
+    assert f"{n} from the cache, 0 sent to the model" in run("b", "--cache-key", "lantern-v1")
+    assert f"0 from the cache, {n} sent to the model" in run("c", "--cache-key", "lantern-v2")
+    without = run("d")  # the key without --cache-key is another key again
+    assert f"0 from the cache, {n} sent to the model" in without and "add --cache-key" in without
+    assert len(log.read_text(encoding="utf-8").splitlines()) == 3 * n
+
+
+@pytest.mark.parametrize("args, what", [(["--cache-key", "", "--cache", "c.db"], "empty"),
+                                        (["--cache-key", "   ", "--cache", "c.db"], "empty"),
+                                        (["--cache-key", "v2"], "given without --cache")])
+def test_cache_key_option_is_checked(tmp_path, args, what):
+    suite = write_test_suite(tmp_path / "suite.jsonl")
+    args = [str(tmp_path / a) if a == "c.db" else a for a in args]
+    r = run_cli(["score", str(suite), "--model", "helpers.toy_models:keyword_labels", "-o", str(tmp_path / "r.jsonl"), *args])
+    assert r.code == 2 and r.stderr.startswith("pairflip: error: --cache-key") and what in r.stderr, r.stderr
+    assert not (tmp_path / "r.jsonl").exists()

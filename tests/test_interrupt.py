@@ -121,12 +121,16 @@ def test_in_process_keyboard_interrupt_mid_build(tmp_path, capsys, monkeypatch, 
     monkeypatch.setattr(nlp_mod, "load_nlp", lambda name=None: nlp)
     real = build_mod.iter_pairs
 
+    from pairflip.records import Interrupted
+
     def interrupted(texts, **kw):
+        # What the CLI's SIGINT handler raises. (A bare KeyboardInterrupt raised by a statement is
+        # a model fault, exit 2: tests/test_cli_errors.py.)
         for n, pair in enumerate(real(itertools.islice(texts, 50), **kw)):
             if n == 3:
-                raise KeyboardInterrupt
+                raise Interrupted
             yield pair
-        raise KeyboardInterrupt
+        raise Interrupted
 
     monkeypatch.setattr(build_mod, "iter_pairs", interrupted)
     corpus = tmp_path / "r.txt"
@@ -140,3 +144,56 @@ def test_in_process_keyboard_interrupt_mid_build(tmp_path, capsys, monkeypatch, 
     assert not out.exists() and _temps(tmp_path, out.name) == []
     # the handlers are put back afterwards
     assert (signal.getsignal(signal.SIGINT), signal.getsignal(signal.SIGTERM)) == before
+
+
+# --------------------------------------------------------------------------- score, hung HTTP model
+
+
+@pytest.mark.parametrize("sig", [signal.SIGINT, signal.SIGTERM], ids=["SIGINT", "SIGTERM"])
+def test_signal_ends_a_concurrent_run_against_a_hung_server(tmp_path, sig):
+    """With --concurrency 2 and two requests hanging on the server, a signal ends `pairflip score`
+    at once rather than after --timeout 60: the batches in flight are cut off, the finished ones
+    stay in the cache, and no output file is left. (The limit below bounds a hang; it is not a
+    speed target: 10 s against the 60 s the hung requests would otherwise take.)"""
+    from helpers.model_server import ModelServer
+    from helpers.suites import write_test_suite
+    from pairflip.probes.cache import PredictionCache
+
+    suite = write_test_suite(tmp_path / "suite.jsonl", 20)
+    out, cache = tmp_path / "results.jsonl", tmp_path / "c.db"
+    seen: list[str] = []
+
+    def plan(key: str) -> list[str]:  # the first four batches are answered, every later one hangs
+        if key not in seen:
+            seen.append(key)
+        return [] if seen.index(key) < 4 else ["stall"]
+
+    env = dict(os.environ, PAIRFLIP_NO_PROGRESS="1")
+    with ModelServer(faults=plan, stall_seconds=120) as srv:
+        proc = subprocess.Popen(
+            [PAIRFLIP, "score", str(suite), "--model", srv.url, "-o", str(out), "--cache", str(cache),
+             "--batch-size", "4", "--concurrency", "2", "--timeout", "60", "--retries", "0"],
+            stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True, env=env,
+        )
+        try:
+            deadline = time.monotonic() + 60
+            while srv.stalling < 2:  # both batches in flight are hanging
+                assert proc.poll() is None, proc.communicate()
+                assert time.monotonic() < deadline, "the run never reached the hung batches"
+                time.sleep(0.02)
+            proc.send_signal(sig)
+            try:
+                _, err = proc.communicate(timeout=10)
+            except subprocess.TimeoutExpired:
+                pytest.fail("`pairflip score` was still running 10 s after the signal (--timeout 60)")
+        finally:
+            if proc.poll() is None:
+                proc.kill()
+                proc.communicate()
+        answered = list(srv.texts_answered)
+    assert proc.returncode == 128 + int(sig), err
+    assert "interrupted" in err and "Traceback" not in err
+    assert not out.exists() and _temps(tmp_path, out.name) == []
+    assert len(answered) == 16  # four batches of four
+    with PredictionCache(cache) as c:
+        assert c.count() == 16

@@ -134,6 +134,12 @@ def test_http_5xx_after_retries(tmp_path, suite):
         (["--concurrency", "0"], "--concurrency must be a whole number >= 1, got 0"),
         (["--batch-size", "0"], "--batch-size must be a whole number >= 1, got 0"),
         (["--margin", "-0.5"], "--margin must be a number >= 0, got -0.5"),
+        # issue 12: --timeout inf used to be blamed on the model (an OverflowError in the batch)
+        (["--timeout", "inf"], "--timeout must be a finite number of seconds > 0, got inf"),
+        (["--timeout", "nan"], "--timeout must be a finite number of seconds > 0, got nan"),
+        (["--timeout", "0"], "--timeout must be a finite number of seconds > 0, got 0"),
+        (["--timeout", "-3"], "--timeout must be a finite number of seconds > 0, got -3"),
+        (["--retries", "-1"], "--retries must be a whole number >= 0, got -1"),
     ],
 )
 def test_bad_options(tmp_path, suite, args, expected):
@@ -147,3 +153,118 @@ def test_real_process_prints_one_line_and_no_traceback(tmp_path, suite):
     flat = _check_failed(run, out, "model helpers.toy_models:raises: batch 2 of 8", "RuntimeError")
     assert re.fullmatch(r"pairflip: error: [^\n]+", " ".join(run.stderr.split()))
     assert "rerun with --debug" not in flat  # a model error is an input problem, not a pairflip bug
+
+
+
+# --------------------------------------------------------------------------- model code that exits
+
+QUITTERS = """
+import sys
+
+from helpers.keyword_rules import CLASSES, label, probabilities
+
+
+def quits_zero(texts):
+    sys.exit(0)
+
+
+def quits_with_text(texts):
+    sys.exit("the lantern model needs a GPU")
+
+
+def quits_none(texts):
+    sys.exit()
+
+
+def interrupts(texts):
+    raise KeyboardInterrupt
+
+
+class QuitsOnProba:
+    classes_ = list(CLASSES)
+
+    def predict(self, texts):
+        return [label(t) for t in texts]
+
+    def predict_proba(self, texts):
+        sys.exit(1)
+"""
+
+
+@pytest.fixture
+def quitters(tmp_path, monkeypatch):
+    """A module of models that call sys.exit or raise KeyboardInterrupt, importable from the
+    current folder under a name of its own (so no other test's module is reused)."""
+    import uuid
+
+    name = f"quitters_{uuid.uuid4().hex[:10]}"
+    (tmp_path / f"{name}.py").write_text(QUITTERS, encoding="utf-8")
+    monkeypatch.chdir(tmp_path)
+    monkeypatch.syspath_prepend(str(tmp_path))
+    return name
+
+
+@pytest.mark.parametrize(
+    "name, expected",
+    [
+        ("quits_zero", "the model called sys.exit(0)"),
+        ("quits_none", "the model called sys.exit()"),
+        ("quits_with_text", "the model called sys.exit with the message 'the lantern model needs a GPU'"),
+        ("interrupts", "the model raised KeyboardInterrupt"),
+        ("QuitsOnProba", "the model called sys.exit(1)"),
+    ],
+)
+def test_model_that_exits_is_a_model_failure(tmp_path, suite, quitters, name, expected):
+    """sys.exit(0) inside predict used to end `pairflip score` with exit 0, no output and no
+    message, so a CI gate passed with nothing checked."""
+    out = tmp_path / "results.jsonl"
+    run = run_cli(["score", str(suite), "--model", f"{quitters}:{name}", "-o", str(out)])
+    _check_failed(run, out, f"model {quitters}:{name}: batch 1 of 1", expected)
+
+
+def test_joblib_model_that_exits(tmp_path, suite, quitters):
+    import importlib
+
+    model = tmp_path / "quitter.joblib"
+    joblib.dump(importlib.import_module(quitters).QuitsOnProba(), model)
+    out = tmp_path / "results.jsonl"
+    _check_failed(run_cli(["score", str(suite), "--model", str(model), "-o", str(out)]), out,
+                  f"model {model}: batch 1 of 1", "the model called sys.exit(1)")
+
+
+def test_module_that_exits_when_imported(tmp_path, suite, monkeypatch):
+    """A model module written as a script (argparse at import time) exits while it is imported."""
+    import uuid
+
+    name = f"script_like_{uuid.uuid4().hex[:10]}"
+    (tmp_path / f"{name}.py").write_text("import sys\nsys.exit(2)\n\ndef rate(texts):\n    return []\n", encoding="utf-8")
+    monkeypatch.chdir(tmp_path)
+    monkeypatch.syspath_prepend(str(tmp_path))
+    out = tmp_path / "results.jsonl"
+    _check_failed(run_cli(["score", str(suite), "--model", f"{name}:rate", "-o", str(out)]), out,
+                  f"--model {name}:rate: importing module {name!r} called sys.exit(2)")
+
+
+def test_python_api_turns_sys_exit_into_a_model_error(quitters):
+    import pairflip
+    from helpers.suites import make_pairs
+    from pairflip.records import PairflipError
+
+    with pytest.raises(PairflipError, match=r"batch 1 of 1 .*the model called sys.exit\(0\)"):
+        pairflip.score(make_pairs(), f"{quitters}:quits_zero")
+
+
+def test_audit_with_a_gate_and_a_model_that_exits(tmp_path, quitters, nlp, monkeypatch):
+    """`audit --limit ...` used to exit 0 (the gate passed) when the model called sys.exit(0)."""
+    import pairflip.perturb.nlp as nlp_mod
+
+    monkeypatch.setattr(nlp_mod, "load_nlp", lambda name=None: nlp)
+    corpus = tmp_path / "reviews.txt"
+    corpus.write_text("The tent is great.\nThe stove is reliable.\nThe jacket leaks.\n", encoding="utf-8")
+    out_dir = tmp_path / "audit"
+    run = run_cli(["audit", str(corpus), "--model", f"{quitters}:quits_zero", "--out-dir", str(out_dir),
+                   "--limit", "negation.violation <= 0.5"])
+    assert run.code == 2, (run.code, run.stdout, run.stderr)
+    last = " ".join(run.stderr.split("pairflip: error: ")[-1].split())  # after the build summary
+    assert last.startswith(f"model {quitters}:quits_zero: batch 1 of 1") and "the model called sys.exit(0)" in last
+    assert "Traceback" not in run.stderr and not (out_dir / "results.jsonl").exists()

@@ -53,7 +53,8 @@ def check_build(texts: list[str], nlp, lexicon, families=None) -> list:
         assert p.family in known, p
         assert p.rule in known[p.family], p
         assert p.should == known[p.family][p.rule], p
-        assert p.source in inputs, p
+        # a sentence unit: the source is one sentence of an input text
+        assert p.source in inputs or (p.extra.get("sentence") is not None and any(p.source in t for t in inputs)), p
         assert p.variant != p.source, p
         assert p.variant.strip(), p
         if p.family == "reorder":
@@ -217,5 +218,157 @@ def test_apply_edits_spans_replay_to_the_variant(nlp):
             f"apply_edits on {doc.text!r} with {edits}: char edits {[e.to_dict() for e in char_edits]} "
             f"replay to {got!r}, but the variant is {variant!r}"
         )
+
+    run()
+
+
+# --------------------------------------------------------------------------- scoring under model faults
+
+# Faults a model can inject at one of its batches. cmd: models count batches per process
+# (FAULTY_MODEL in tests/test_adapters_command.py); the Python model counts its calls.
+CMD_FAULTS = ["none", "error", "crash", "short", "hang", "extra-before", "extra-after", "extra-late"]
+PY_FAULTS = ["none", "raise", "exit", "plain-interrupt", "signal", "short"]
+
+PY_MODEL = """
+import signal
+import sys
+
+from helpers.keyword_rules import CLASSES, label, probabilities
+
+PLAN = {"fault": "none", "at": 0, "calls": 0}
+
+
+def rate(texts):
+    n = PLAN["calls"]
+    PLAN["calls"] += 1
+    out = [{"label": label(t), "probabilities": dict(zip(CLASSES, probabilities(t)))} for t in texts]
+    if n != PLAN["at"]:
+        return out
+    fault = PLAN["fault"]
+    if fault == "raise":
+        raise RuntimeError("the stove model ran out of fuel")
+    if fault == "exit":
+        sys.exit(0)
+    if fault == "plain-interrupt":
+        raise KeyboardInterrupt
+    if fault == "signal":  # a real Ctrl-C arriving in the middle of a batch
+        signal.raise_signal(signal.SIGINT)
+    if fault == "short":
+        return out[:-1]
+    return out
+"""
+
+
+@pytest.fixture(scope="module")
+def fault_bench(tmp_path_factory):
+    """A folder with the fault-injecting models, suites of several sizes, and the results of a
+    healthy run of each model kind on each suite (computed once, on first use)."""
+    import importlib
+    import sys
+    import uuid
+
+    from test_adapters_command import faulty_model
+
+    folder = tmp_path_factory.mktemp("faults")
+    name = f"faulty_py_{uuid.uuid4().hex[:8]}"
+    (folder / f"{name}.py").write_text(PY_MODEL, encoding="utf-8")
+    sys.path.insert(0, str(folder))
+    py_module = importlib.import_module(name)
+    bench = {"folder": folder, "py": py_module, "py_spec": f"{name}:rate", "cmd_spec": faulty_model, "suites": {},
+             "healthy": {}, "runs": 0}
+    yield bench
+    sys.path.remove(str(folder))
+
+
+def _body(path) -> list[dict]:
+    import json
+
+    return [json.loads(x) for x in path.read_text(encoding="utf-8").splitlines()[1:]]
+
+
+def _suite(bench, n_extra: int):
+    from helpers.suites import write_test_suite
+
+    if n_extra not in bench["suites"]:
+        bench["suites"][n_extra] = write_test_suite(bench["folder"] / f"suite-{n_extra}.jsonl", n_extra)
+    return bench["suites"][n_extra]
+
+
+def _score_run(bench, kind: str, n_extra: int, fault: str, at: int, echo: bool, batch_size: int, concurrency: int):
+    from helpers.cli import run_cli
+
+    bench["runs"] += 1
+    k = bench["runs"]
+    out, cache = bench["folder"] / f"results-{k}.jsonl", bench["folder"] / f"cache-{k}.db"
+    if kind == "py":
+        bench["py"].PLAN.update(fault=fault, at=at, calls=0)
+        spec = bench["py_spec"]
+    else:
+        spec = bench["cmd_spec"](bench["folder"], fault, at, echo)
+    run = run_cli(["score", str(_suite(bench, n_extra)), "--model", spec, "-o", str(out), "--cache", str(cache),
+                   "--batch-size", str(batch_size), "--concurrency", str(concurrency), "--timeout", "1.5"])
+    return run, out, cache
+
+
+def _healthy(bench, kind: str, n_extra: int) -> list[dict]:
+    key = (kind, n_extra)
+    if key not in bench["healthy"]:
+        run, out, _ = _score_run(bench, kind, n_extra, "none", 0, False, 64, 1)
+        assert run.code == 0, run.stderr
+        bench["healthy"][key] = _body(out)
+    return bench["healthy"][key]
+
+
+@st.composite
+def fault_case(draw):
+    kind = draw(st.sampled_from(["cmd", "cmd", "py"]))
+    return dict(
+        kind=kind,
+        fault=draw(st.sampled_from(CMD_FAULTS if kind == "cmd" else PY_FAULTS)),
+        at=draw(st.integers(0, 5)),
+        echo=draw(st.booleans()),
+        n_extra=draw(st.sampled_from([0, 4, 12])),
+        batch_size=draw(st.integers(2, 7)),
+        concurrency=draw(st.integers(1, 3)),
+    )
+
+
+def test_a_faulty_model_never_leaves_wrong_results_or_wrong_cache(fault_bench):
+    """For any suite and any fault injected at a random batch (an exception or error answer, a
+    crash, an extra line, a short answer, a hang past --timeout, sys.exit, KeyboardInterrupt, a
+    real SIGINT), `pairflip score --cache` either completes with exactly the results of a healthy
+    run, or exits non-zero leaving no output file and a cache that holds only correct predictions
+    (each one equal to the healthy run's)."""
+    from helpers.suites import make_pairs, texts_of
+    from test_adapters_command import assert_cache_holds_only_keyword_predictions
+
+    def case(kind, fault, at=1, echo=False, n_extra=4, batch_size=3, concurrency=1):
+        return dict(kind=kind, fault=fault, at=at, echo=echo, n_extra=n_extra, batch_size=batch_size,
+                    concurrency=concurrency)
+
+    # every kind of fault at least once, whatever is drawn
+    @settings(max_examples=36, **SETTINGS)
+    @given(case=fault_case())
+    @example(case=case("cmd", "hang", concurrency=2))
+    @example(case=case("py", "signal"))
+    @example(case=case("cmd", "extra-late", at=2, concurrency=2))
+    @example(case=case("cmd", "extra-before", at=0, echo=True, concurrency=3))
+    @example(case=case("cmd", "crash", at=3))
+    def run(case):
+        healthy = _healthy(fault_bench, case["kind"], case["n_extra"])
+        res, out, cache = _score_run(fault_bench, **case)
+        if res.code == 0:
+            assert _body(out) == healthy, case
+        else:
+            assert res.code in (2, 130), (case, res.code, res.stderr)
+            assert res.stderr.startswith("pairflip: error: model" if res.code == 2 else "pairflip: interrupted"), res.stderr
+            assert not out.exists(), case
+            assert not [p for p in out.parent.iterdir() if p.name.startswith(f".{out.name}")], case
+        assert case["fault"] != "none" or res.code == 0, (case, res.stderr)
+        # the cache holds only right predictions: the keyword rules' label and probabilities,
+        # which is what the healthy run predicted (its results equal the keyword verdicts)
+        cached = assert_cache_holds_only_keyword_predictions(cache, texts_of(make_pairs(case["n_extra"])))
+        if res.code == 0:
+            assert cached == len(texts_of(make_pairs(case["n_extra"])))
 
     run()

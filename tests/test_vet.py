@@ -246,3 +246,99 @@ def test_app_keys_through_the_textual_pilot(suite_file, tmp_path):
         (ids[0], "accept"), (ids[1], "reject"), (ids[2], "change"), (ids[3], "reject"), (ids[3], "undo")]
     assert recs[1]["reason"] == "expectation-wrong" and recs[2]["should"] == "hold"
     assert set(read_decisions(d)) == set(ids[:3])
+
+
+# --------------------------------------------------------------------------- --vetted in later steps
+
+
+@pytest.fixture()
+def scored(suite_file, tmp_path, monkeypatch, capsys) -> Path:
+    # A model that ignores "not" and "very": every negation pair keeps its label (a violation),
+    # every amplified pair keeps it too (ok for strengthen with labels only).
+    (tmp_path / "fe_vet_model.py").write_text("def predict(texts):\n    return ['positive'] * len(texts)\n", encoding="utf-8")
+    monkeypatch.syspath_prepend(str(tmp_path))
+    out = tmp_path / "results.jsonl"
+    code, _, err = run(["score", suite_file, "--model", "fe_vet_model:predict", "-o", out], capsys)
+    assert code == 0, err
+    return out
+
+
+def _decide(path: Path, *answers: tuple) -> Path:
+    log = DecisionLog(path)
+    for pid, decision, extra in answers:
+        log.add(pid, decision, **extra)
+    log.close()
+    return path
+
+
+def test_rejected_violations_disappear_from_show_and_gate(scored, tmp_path, capsys):
+    ids = [p.id for p in _pairs()]
+    neg = [i for k, i in enumerate(ids) if k % 2 == 0]  # the six negation pairs, all violated
+    d = _decide(tmp_path / "d.jsonl", *[(i, "reject", {"reason": "ungrammatical"}) for i in neg[:4]],
+                (neg[4], "accept", {}), (ids[1], "accept", {}))
+    code, _, err = run(["gate", scored, "--limit", "negation.violation <= 0.5"], capsys)
+    assert code == 1, err  # 6 of 6 violated
+    code, out, err = run(["show", scored, "--vetted", d, "--json", tmp_path / "s.json"], capsys)
+    assert code == 0, err
+    summary = json.loads((tmp_path / "s.json").read_text(encoding="utf-8"))
+    neg_row = summary["families"]["negation"]
+    assert (neg_row["pairs"], neg_row["violations"], neg_row["rejected"], neg_row["vetted"]) == (2, 2, 4, 1)
+    assert neg_row["confirmed"]["violations"] == 1 and neg_row["validity"] == pytest.approx(1 / 5)
+    assert summary["vetted"]["rejected"] == 4 and summary["vetted"]["total"] == 12
+    assert "6 of 12 pairs: 4 rejected and left out, 0 expectations changed" in out
+    # With 4 of the 6 rejected, the 2 left still violate: the plain gate still fails ...
+    code, _, err = run(["gate", scored, "--vetted", d, "--limit", "negation.violation <= 0.5"], capsys)
+    assert code == 1
+    # ... and so does the confirmed one (1 of 1 accepted pairs violated); with the last two
+    # rejected as well, no violation is left.
+    d2 = _decide(tmp_path / "d.jsonl", (neg[4], "reject", {"reason": "no-opinion"}), (neg[5], "reject", {"reason": "other"}))
+    code, _, err = run(["show", scored, "--vetted", d2, "--json", tmp_path / "s2.json"], capsys)
+    assert code == 0, err
+    assert "negation" not in json.loads((tmp_path / "s2.json").read_text(encoding="utf-8"))["families"]
+
+
+def test_changed_expectation_is_judged_again(scored, tmp_path, capsys):
+    ids = [p.id for p in _pairs()]
+    # negation pair 0 violated "flip"; as "hold" (the model kept its label) it is ok
+    d = _decide(tmp_path / "d.jsonl", (ids[0], "change", {"should": "hold", "was": "flip"}))
+    code, out, err = run(["show", scored, "--vetted", d, "--json", tmp_path / "s.json"], capsys)
+    assert code == 0, err
+    fams = json.loads((tmp_path / "s.json").read_text(encoding="utf-8"))["families"]
+    assert fams["negation"]["violations"] == 5
+    assert fams["negation"]["rules"]["negation/copula"]["should"] == "mixed"
+
+
+def test_gate_on_confirmed_needs_vetted_and_judges_only_accepted(scored, tmp_path, capsys):
+    ids = [p.id for p in _pairs()]
+    code, _, err = run(["gate", scored, "--on", "confirmed", "--limit", "negation.violation <= 0.5"], capsys)
+    assert code == 2 and "--vetted" in err
+    d = _decide(tmp_path / "d.jsonl", (ids[1], "accept", {}), (ids[3], "accept", {}))  # two intensifier pairs, ok
+    code, out, err = run(["gate", scored, "--vetted", d, "--on", "confirmed", "--limit", "intensifier.violation <= 0.1"], capsys)
+    assert code == 0, out + err
+    code, out, err = run(["gate", scored, "--vetted", d, "--on", "confirmed", "--limit", "negation.violation <= 0.1"], capsys)
+    assert code == 1, out  # no negation pair was accepted: nothing confirmed is not a pass
+    from pairflip.files import read_results
+    from pairflip.report import summarize
+    from pairflip.report.gate import check, parse_limit
+    from pairflip.report.vetted import vet_results
+
+    (outcome,) = check(summarize(vet_results(read_results(scored), d)), [parse_limit("negation.violation <= 0.1")], on="confirmed")
+    assert not outcome.passed and "nothing confirmed" in outcome.note
+
+
+def test_score_vetted_never_sends_rejected_pairs(suite_file, tmp_path, capsys, monkeypatch):
+    seen = tmp_path / "seen.txt"
+    (tmp_path / "fe_seen_model.py").write_text(
+        f"def predict(texts):\n    open({str(seen)!r}, 'a').write('\\n'.join(texts) + '\\n')\n    return ['positive'] * len(texts)\n",
+        encoding="utf-8")
+    monkeypatch.syspath_prepend(str(tmp_path))
+    pairs = _pairs()
+    d = _decide(tmp_path / "d.jsonl", (pairs[0].id, "reject", {"reason": "ungrammatical"}))
+    out = tmp_path / "r.jsonl"
+    code, _, err = run(["score", suite_file, "--model", "fe_seen_model:predict", "-o", out, "--vetted", d], capsys)
+    assert code == 0, err
+    assert pairs[0].variant not in seen.read_text(encoding="utf-8").splitlines()
+    head = json.loads(out.read_text(encoding="utf-8").splitlines()[0])
+    assert head["vetted"]["rejected"] == 1 and head["vetted"]["total"] == 12
+    code, out_text, err = run(["show", out], capsys)
+    assert "1 rejected and left out" in out_text

@@ -2,8 +2,10 @@
 
 POST ``{"texts": [...]}`` -> ``{"labels": [...], "probabilities": [...], "classes": [...]}`` from
 :mod:`keyword_rules`. ``faults(batch_key)`` gives, for each batch, the faults to inject into its
-first attempts in order (``"503"``, ``"stall"``: sleep past the client's timeout, then answer);
-every later attempt is answered normally, so the number of failures is bounded.
+first attempts in order (``"503"``, ``"stall"``: sleep past the client's timeout, then answer;
+``"trickle"``: send the answer one byte every ``trickle_seconds``, so every single read is quick
+but the whole answer is slow); every later attempt is answered normally, so the number of
+failures is bounded. A stall ends early when the server is shut down.
 """
 
 from __future__ import annotations
@@ -36,6 +38,7 @@ class ModelServer:
         *,
         faults: Callable[[str], list[str]] | None = None,
         stall_seconds: float = 1.5,
+        trickle_seconds: float = 0.5,
         status: int | None = None,
         body: bytes | None = None,
         with_probabilities: bool = True,
@@ -43,6 +46,10 @@ class ModelServer:
     ) -> None:
         self.faults = faults or (lambda key: [])
         self.stall_seconds = stall_seconds
+        self.trickle_seconds = trickle_seconds
+        self.trickles_finished = 0  # trickled answers that reached their last byte
+        self.stalling = 0  # requests being stalled right now
+        self._stopping = threading.Event()
         self.status = status  # answer every request with this status and body (4xx/5xx tests)
         self.body = body
         self.with_probabilities = with_probabilities
@@ -81,7 +88,14 @@ class ModelServer:
             self._send(handler, 503, b'{"error": "busy"}')
             return
         if fault == "stall":
-            time.sleep(self.stall_seconds)  # the client has given up by now
+            with self._lock:
+                self.stalling += 1
+            self._stopping.wait(self.stall_seconds)  # the client has given up by now
+            with self._lock:
+                self.stalling -= 1
+        if fault == "trickle":
+            self._trickle(handler, json.dumps(answer(texts, self.with_probabilities)).encode("utf-8"))
+            return
         if self.body is not None:
             self._send(handler, 200, self.body)
             return
@@ -90,6 +104,25 @@ class ModelServer:
             with self._lock:
                 self.texts_answered.extend(texts)
         self._send(handler, 200, json.dumps(out).encode("utf-8"))
+
+    def _trickle(self, handler: BaseHTTPRequestHandler, body: bytes) -> None:
+        """A status line and headers at once, then the body one byte at a time."""
+        try:
+            handler.send_response(200)
+            handler.send_header("Content-Type", "application/json")
+            handler.send_header("Content-Length", str(len(body)))
+            handler.end_headers()
+            handler.wfile.flush()
+            for i in range(len(body)):
+                if self._stopping.wait(self.trickle_seconds):
+                    return
+                if i == len(body) - 1:  # counted before the last byte leaves, so a client never sees it first
+                    with self._lock:
+                        self.trickles_finished += 1
+                handler.wfile.write(body[i : i + 1])
+                handler.wfile.flush()
+        except (BrokenPipeError, ConnectionResetError):
+            return  # the client gave up
 
     @staticmethod
     def _send(handler: BaseHTTPRequestHandler, status: int, body: bytes) -> None:
@@ -128,6 +161,7 @@ class ModelServer:
 
     def __exit__(self, *exc: object) -> None:
         assert self._httpd is not None
+        self._stopping.set()
         self._httpd.shutdown()
         self._httpd.server_close()
         self._thread.join(timeout=5)
