@@ -578,6 +578,9 @@ def audit(
                 raise PairflipError(f"--on {on!r}: expected point, upper or lower")
         if examples < 0:
             raise PairflipError(f"--examples {examples}: expected 0 or more examples per family")
+        from pairflip.probes.batching import check_run_options
+
+        check_run_options(batch_size=batch_size, concurrency=concurrency, timeout=timeout, retries=retries)
         _make_out_dir(out_dir)
         suite_path, results_path = out_dir / "suite.jsonl", out_dir / "results.jsonl"
         retry = " or choose another --out-dir"

@@ -524,3 +524,11 @@ def test_score_refuses_the_suite_as_its_cache(suite_file, tmp_path, capsys, mode
     code, _, err = run(["score", suite_file, "--model", model_spec, "-o", out, "--cache", suite_file], capsys)
     assert_clean_failure(code, err, out, f"--cache {suite_file}", "suite file itself")
     assert suite_file.read_bytes() == before
+
+
+@pytest.mark.parametrize("option, value", [("--timeout", "inf"), ("--batch-size", "0"), ("--retries", "-1")])
+def test_audit_checks_run_options_before_building(corpus, tmp_path, capsys, model_spec, option, value):
+    out = tmp_path / "audit"
+    code, _, err = run(["audit", corpus, "--model", model_spec, "--out-dir", out, option, value], capsys)
+    assert_clean_failure(code, err, None, option)
+    assert not (out / "suite.jsonl").exists()
