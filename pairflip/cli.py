@@ -294,7 +294,7 @@ def score(
     model: str = typer.Option(..., "--model", "-m", help="Model SPEC: path/model.joblib, package.module:name, http://host:port/path, or cmd:COMMAND. " + SECURITY_NOTE),
     output: Path = typer.Option(..., "-o", "--output", help="Where to write the results (.jsonl)."),
     labels: Optional[str] = typer.Option(None, "--labels", help="The model's labels from most negative to most positive, comma-separated."),
-    margin: float = typer.Option(0.0, "--margin", help="Score change tolerated by strengthen/weaken expectations."),
+    margin: float = typer.Option(0.05, "--margin", help="Polarity-score change (on -1..1) tolerated by strengthen/weaken/rise/fall (default 0.05)."),
     batch_size: int = typer.Option(64, "--batch-size", help="Texts per model call."),
     cache: Optional[Path] = typer.Option(None, "--cache", help="SQLite prediction cache; reruns never predict a finished text again."),
     concurrency: int = typer.Option(1, "--concurrency", help="Batches in flight at once (HTTP and cmd: models)."),
@@ -319,6 +319,10 @@ def score(
             concurrency=concurrency, timeout=timeout, retries=retries, force=force, counts=counts, cache_key=cache_key, vetted=vetted,
         )
         n_viol = sum(1 for v in results.verdicts if v.verdict == "violation")
+        labels_only = ""
+        if results.verdicts and all(v.source_score is None and v.variant_score is None for v in results.verdicts):
+            n_graded = sum(1 for v in results.verdicts if v.verdict == "n/a" and v.should in ("strengthen", "weaken"))
+            labels_only = f"; model gives labels only: {n_graded} strengthen/weaken pairs could not be judged"
         n_texts = results.header.get("texts_predicted")
         if cache:
             where = f"{counts['cached']} from the cache, {n_texts - counts['cached']} sent to the model"
@@ -330,7 +334,7 @@ def score(
             key = f"; the cache key covers {covers}" + ("" if cache_key else " (add --cache-key TEXT to tie it to a model version)")
         _err_console().print(
             f"scored {len(results.verdicts)} pairs ({n_texts} distinct texts: {where}) "
-            f"with {model}: {n_viol} violations; wrote {output}{key}",
+            f"with {model}: {n_viol} violations{labels_only}; wrote {output}{key}",
             markup=False,
         )
 
@@ -548,7 +552,7 @@ def audit(
     spacy_model: Optional[str] = typer.Option(None, "--spacy-model"),
     lexicon: List[Path] = typer.Option([], "--lexicon"),
     labels: Optional[str] = typer.Option(None, "--labels"),
-    margin: float = typer.Option(0.0, "--margin"),
+    margin: float = typer.Option(0.05, "--margin", help="Polarity-score change tolerated by strengthen/weaken/rise/fall (default 0.05; see `score`)."),
     batch_size: int = typer.Option(64, "--batch-size"),
     cache: Optional[Path] = typer.Option(None, "--cache"),
     concurrency: int = typer.Option(1, "--concurrency"),

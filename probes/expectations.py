@@ -9,8 +9,10 @@ should      violation when
 flip        the variant's polarity equals the source's; ``n/a`` when the source is neutral
 hold        the label changed
 strengthen  the polarity reversed or moved toward neutral; with scores, also when |score|
-            fell by more than ``margin``
-weaken      the polarity reversed; with scores, also when |score| rose by more than ``margin``
+            fell by more than ``margin``; labels only and the same label on both sides: ``n/a``
+            (a label cannot show a change of strength)
+weaken      the polarity reversed; with scores, also when |score| rose by more than ``margin``;
+            labels only and the same label on both sides: ``n/a``
 rise        with scores on both sides: the variant's score is not above the source's by more
             than ``margin``; labels only: the variant's label polarity is below the source's
             (``n/a`` when both label polarities are equal: labels cannot show a small rise)
@@ -82,15 +84,15 @@ def judge(
             and variant_strength < source_strength
         ):
             return "violation"  # 5 -> 4 stars: same side, closer to neutral
-        if scored and abs(source_score) - abs(variant_score) > margin + _EPS:  # type: ignore[arg-type]
-            return "violation"
-        return "ok"
+        if scored:
+            return "violation" if abs(source_score) - abs(variant_score) > margin + _EPS else "ok"  # type: ignore[arg-type]
+        return "n/a" if variant_label == source_label else "ok"  # one label: no strength to compare
     # weaken
     if reversed_:
         return "violation"
-    if scored and abs(variant_score) - abs(source_score) > margin + _EPS:  # type: ignore[arg-type]
-        return "violation"
-    return "ok"
+    if scored:
+        return "violation" if abs(variant_score) - abs(source_score) > margin + _EPS else "ok"  # type: ignore[arg-type]
+    return "n/a" if variant_label == source_label else "ok"
 
 
 OUTCOMES = ("ok", "violation", "n/a")
@@ -132,6 +134,8 @@ def judge_many(
         reversed_ | (polar & (vp == 0)) | (polar & (vp == sp) & (variant_strength < source_strength)) | fell
     )
     weaken_v = code["weaken"] & (reversed_ | rose)
+    # labels only and the same label on both sides: a label cannot show a change of strength
+    graded_na = (code["strengthen"] | code["weaken"]) & ~scored & (variant_code == source_code) & ~(strengthen_v | weaken_v)
     directed = code["rise"] | code["fall"]
     sign = np.where(code["rise"], 1, -1).astype(np.int8)
     with np.errstate(invalid="ignore"):
@@ -142,6 +146,7 @@ def judge_many(
     out[flip_v | hold_v | strengthen_v | weaken_v | directed_v] = _VIOLATION
     out[code["flip"] & ~polar] = _NA
     out[directed & ~scored & (vp == sp)] = _NA
+    out[graded_na] = _NA
     return out
 
 

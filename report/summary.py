@@ -156,6 +156,13 @@ class Summary:
         v = self.header.get("vetted")
         return dict(v) if isinstance(v, dict) else None
 
+    @property
+    def labels_only_unjudged(self) -> int | None:
+        """With a model that gave labels only (no score on any text): how many strengthen/weaken
+        pairs could not be judged (one label on both sides shows no change of strength); None
+        when the model gave scores."""
+        return self.header.get("labels_only_unjudged")
+
     def vetted_sentence(self) -> str | None:
         v = self.vetted
         if not v:
@@ -310,6 +317,10 @@ def summarize(
         ]
         families[fam] = g
     accuracy = _accuracy(results)
+    header = dict(results.header)
+    if results.verdicts and all(v.source_score is None and v.variant_score is None for v in results.verdicts):
+        header["labels_only_unjudged"] = sum(1 for v in results.verdicts
+                                             if v.verdict == "n/a" and v.should in ("strengthen", "weaken"))
     return Summary(
         families=families,
         model=dict(results.header.get("model") or {}),
@@ -317,7 +328,7 @@ def summarize(
         labels=labels,
         accuracy=accuracy,
         interval="cluster-bootstrap" if cluster == "source" else "wilson",
-        header=dict(results.header),
+        header=header,
     )
 
 

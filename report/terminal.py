@@ -191,8 +191,8 @@ def header_facts(summary: Summary) -> list[tuple[str, str]]:
     facts.append(("labels", describe_labels(s.labels)))
     iv = describe_interval(s)
     margin = s.header.get("margin")
-    if margin:
-        iv += f" · margin {margin}"
+    if margin is not None and s.labels_only_unjudged is None:  # the margin matters only with scores
+        iv += f" · margin {margin:g} (score change tolerated by strengthen/weaken/rise/fall)"
     facts.append(("interval", iv))
     if s.accuracy:
         a = s.accuracy
@@ -201,6 +201,9 @@ def header_facts(summary: Summary) -> list[tuple[str, str]]:
             f"{pct(a['rate'])} % on {a['sources']} sources with a gold label "
             f"({a['correct']} right; 95 % CI {pct(a['ci95'][0])}-{pct(a['ci95'][1])})",
         ))
+    unjudged = s.labels_only_unjudged
+    if unjudged is not None:
+        facts.append(("scores", f"model gives labels only: {unjudged} strengthen/weaken pairs could not be judged (n/a)"))
     vs = s.vetted_sentence()
     if vs:
         facts.append(("vetted", vs.removeprefix("vetted ")))

@@ -36,16 +36,17 @@ LABEL_ONLY = [
     ("hold", P, Z, "violation"),
     ("hold", Z, N, "violation"),
     # strengthen: polarity reversed or moved toward neutral
-    ("strengthen", P, P, "ok"),
-    ("strengthen", N, N, "ok"),
+    # (labels only and the same label: a label cannot show a change of strength)
+    ("strengthen", P, P, "n/a"),
+    ("strengthen", N, N, "n/a"),
     ("strengthen", P, N, "violation"),
     ("strengthen", N, P, "violation"),
     ("strengthen", P, Z, "violation"),
     ("strengthen", N, Z, "violation"),
     ("strengthen", Z, P, "ok"),
-    ("strengthen", Z, Z, "ok"),
-    # weaken: polarity reversed
-    ("weaken", P, P, "ok"),
+    ("strengthen", Z, Z, "n/a"),
+    # weaken: polarity reversed (same label, labels only: n/a)
+    ("weaken", P, P, "n/a"),
     ("weaken", P, Z, "ok"),
     ("weaken", N, Z, "ok"),
     ("weaken", P, N, "violation"),
@@ -128,8 +129,10 @@ def test_with_scores(should, sp, vp, ss, vs, margin, expected):
 
 
 def test_one_side_without_score_falls_back_to_labels():
-    assert _j("strengthen", P, P, 0.9, None) == "ok"
-    assert _j("weaken", P, P, None, 0.9) == "ok"
+    # the same label on both sides and no score on one: nothing shows the strength
+    assert _j("strengthen", P, P, 0.9, None) == "n/a"
+    assert _j("weaken", P, P, None, 0.9) == "n/a"
+    assert _j("strengthen", P, Z, 0.9, None) == "violation"
 
 
 def test_strengthen_on_star_scale_uses_rank():
@@ -140,7 +143,7 @@ def test_strengthen_on_star_scale_uses_rank():
                      source_strength=stars.strength(src), variant_strength=stars.strength(var))
 
     assert j("4", "5") == "ok"
-    assert j("5", "5") == "ok"
+    assert j("5", "5") == "n/a"  # one label: no strength to compare
     assert j("5", "4") == "violation"  # moved toward the neutral 3
     assert j("2", "1") == "ok"
     assert j("1", "2") == "violation"

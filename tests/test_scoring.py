@@ -147,3 +147,65 @@ def test_afinn_is_blind_to_negation():
     res = pairflip.score(pairs, "helpers.reference_models:afinn")
     assert [(v.source_pred, v.variant_pred, v.verdict) for v in res.verdicts] == [
         ("positive", "positive", "violation"), ("positive", "positive", "violation")]
+
+
+# --------------------------------------------------------------------------- what a newcomer misread
+
+
+def _graded_pairs() -> list[Pair]:
+    # two amplified and one softened pair of invented gear sentences
+    return [Pair(source="The tent is roomy.", variant="The tent is very roomy.", family="intensifier",
+                 rule="intensifier/amplify", should="strengthen"),
+            Pair(source="The stove is loud.", variant="The stove is very loud.", family="intensifier",
+                 rule="intensifier/amplify", should="strengthen"),
+            Pair(source="The lamp is very bright.", variant="The lamp is bright.", family="intensifier",
+                 rule="intensifier/remove", should="weaken")]
+
+
+def test_a_labels_only_model_cannot_pass_strengthen_or_weaken_silently(tmp_path, capsys, monkeypatch):
+    """The same label on both sides says nothing about strength: n/a, counted and said, not ok."""
+    from pairflip import cli
+    from pairflip.files import write_suite
+    from pairflip.report import summarize
+
+    res = pairflip.score(_graded_pairs(), lambda texts: ["positive"] * len(texts))
+    assert [v.verdict for v in res.verdicts] == ["n/a", "n/a", "n/a"]
+    s = summarize(res)
+    assert s.families["intensifier"].applicable == 0 and s.labels_only_unjudged == 3
+    # ... and the CLI says it in score's closing line and in the report header
+    suite = tmp_path / "suite.jsonl"
+    write_suite(Suite(header={}, pairs=_graded_pairs()), suite)
+    (tmp_path / "fe_labels_only.py").write_text("def predict(texts):\n    return ['positive'] * len(texts)\n", encoding="utf-8")
+    monkeypatch.syspath_prepend(str(tmp_path))
+    out = tmp_path / "r.jsonl"
+    with pytest.raises(SystemExit) as ex:
+        cli.main(["score", str(suite), "--model", "fe_labels_only:predict", "-o", str(out)])
+    assert ex.value.code in (0, None)
+    err = " ".join(capsys.readouterr().err.split())
+    assert "model gives labels only: 3 strengthen/weaken pairs could not be judged" in err
+    with pytest.raises(SystemExit):
+        cli.main(["show", str(out)])
+    shown = " ".join(capsys.readouterr().out.split())
+    assert "model gives labels only: 3 strengthen/weaken pairs could not be judged" in shown
+
+
+def test_default_margin_absorbs_score_noise_and_is_shown():
+    """A probability wobble of 0.02 is not a weakening: the default margin is 0.05."""
+    from pairflip.probes.scoring import DEFAULT_MARGIN
+    from pairflip.report import summarize
+    from pairflip.report.terminal import header_facts
+
+    def probs(p_pos):
+        return {"label": "positive" if p_pos >= 0.5 else "negative",
+                "probabilities": {"positive": p_pos, "negative": round(1 - p_pos, 10)}}
+
+    def model(texts):  # "very" moves p(positive) from 0.80 down to 0.79: noise, not a weakening
+        return [probs(0.79 if "very" in t else 0.80) for t in texts]
+
+    res = pairflip.score(_graded_pairs()[:1], model)
+    assert DEFAULT_MARGIN == 0.05 and res.header["margin"] == 0.05
+    assert res.verdicts[0].verdict == "ok"
+    strict = pairflip.score(_graded_pairs()[:1], model, margin=0.0)
+    assert strict.verdicts[0].verdict == "violation"  # with margin 0 the 0.02 fall of |score| counts
+    facts = dict(header_facts(summarize(res)))
+    assert "margin 0.05" in facts["interval"]
