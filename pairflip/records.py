@@ -12,7 +12,7 @@ import json
 from dataclasses import dataclass, field
 from typing import Any, Iterable, Iterator
 
-FAMILIES = ("negation", "double-negation", "intensifier", "reorder")
+FAMILIES = ("negation", "double-negation", "intensifier", "reorder", "contrast")
 SHOULDS = ("flip", "hold", "strengthen", "weaken", "rise", "fall", "none")
 VERDICTS = ("ok", "violation", "n/a")
 

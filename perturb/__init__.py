@@ -6,11 +6,11 @@ generator, see :mod:`pairflip.perturb.base`). :func:`build_suite` runs them over
 
 from __future__ import annotations
 
-from pairflip.perturb import double_negation, intensifier, negation, reorder
+from pairflip.perturb import contrast, double_negation, intensifier, negation, reorder
 from pairflip.perturb.base import Candidate, Context, TokenEdit, apply_edits, validate
 from pairflip.perturb.build import BuildStats, build_suite, iter_pairs, resolve_rules
 
-FAMILY_MODULES = {m.FAMILY: m for m in (negation, double_negation, intensifier, reorder)}
+FAMILY_MODULES = {m.FAMILY: m for m in (negation, double_negation, intensifier, reorder, contrast)}
 
 __all__ = [
     "FAMILY_MODULES",
