@@ -56,6 +56,10 @@ def run_demo(*, out_dir: Path | None, seed: int, examples: int, console: Console
             write_results(res, out / f"results-{name}.jsonl")
             summaries.append(summarize(res, examples=max(5, examples)))
         render(summaries, console=console, examples=examples)
+        if any("contrast" in x.families for x in summaries):
+            console.print("About contrast: each pair keeps the opinion words and changes only their order or the connective that weighs them (\"X but Y\" against "
+                          "\"Y but X\" or \"X, although Y\"), and the three demo models count words without their order, so all three "
+                          "are expected to fail it; a model that reads order would not.", markup=False, soft_wrap=True)
         where = f"files in {out}" if out_dir is not None else "rerun with --out-dir DIR to keep the suite, models and results"
         log.print(f"demo finished in {time.perf_counter() - t0:.1f}s; {where}", markup=False)
         return summaries
