@@ -32,6 +32,8 @@ PLAIN = {
     "hold": "the SAME opinion: both texts should get the same label (positive, negative or neutral).",
     "strengthen": "the same opinion, NOT WEAKER: same direction as the first, at least as strong.",
     "weaken": "the same opinion, NOT STRONGER: weaker, equal or neutral, but not the opposite and not stronger.",
+    "rise": "MORE POSITIVE: the second text should read more positive (or less negative) than the first, as a whole.",
+    "fall": "MORE NEGATIVE: the second text should read more negative (or less positive) than the first, as a whole.",
 }
 
 OUT = Path(__file__).resolve().parent / "blind_review"
