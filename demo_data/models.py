@@ -68,6 +68,21 @@ def unigram(texts: list[str]) -> list[str]:
     return list(trained("unigram").predict(texts))
 
 
+def unigram_scored(texts: list[str]) -> list[dict[str, Any]]:
+    """``pairflip.demo.models:unigram_scored``: the unigram model with its class probabilities.
+
+    A model that gives labels only cannot show a strengthen/weaken pair moving (both sides keep
+    one label, so the pair is n/a); this one gives scores, so every intensifier pair is judged.
+    """
+    model = trained("unigram")
+    classes = [str(c) for c in model.classes_]
+    out = []
+    for row in model.predict_proba(texts):
+        probs = {c: float(p) for c, p in zip(classes, row)}
+        out.append({"label": max(probs, key=probs.get), "probabilities": probs})
+    return out
+
+
 def bigram(texts: list[str]) -> list[str]:
     return list(trained("bigram").predict(texts))
 

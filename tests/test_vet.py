@@ -253,9 +253,15 @@ def test_app_keys_through_the_textual_pilot(suite_file, tmp_path):
 
 @pytest.fixture()
 def scored(suite_file, tmp_path, monkeypatch, capsys) -> Path:
-    # A model that ignores "not" and "very": every negation pair keeps its label (a violation),
-    # every amplified pair keeps it too (ok for strengthen with labels only).
-    (tmp_path / "fe_vet_model.py").write_text("def predict(texts):\n    return ['positive'] * len(texts)\n", encoding="utf-8")
+    # A model that ignores "not": every negation pair keeps its label (a violation); "very" raises
+    # its positive score, so every amplified pair is ok (strengthen).
+    (tmp_path / "fe_vet_model.py").write_text(
+        "def predict(texts):\n"
+        "    out = []\n"
+        "    for t in texts:\n"
+        "        p = 0.9 if 'very' in t else 0.7\n"
+        "        out.append({'label': 'positive', 'probabilities': {'positive': p, 'negative': 1 - p}})\n"
+        "    return out\n", encoding="utf-8")
     monkeypatch.syspath_prepend(str(tmp_path))
     out = tmp_path / "results.jsonl"
     code, _, err = run(["score", suite_file, "--model", "fe_vet_model:predict", "-o", out], capsys)
