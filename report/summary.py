@@ -47,6 +47,7 @@ from collections import defaultdict
 from dataclasses import dataclass, field
 from typing import Any, Iterable, Sequence
 
+from pairflip.labels import LabelMap
 from pairflip.records import PairflipError, Results, Verdict
 from pairflip.report.stats import cluster_bootstrap_ci, wilson_interval
 
@@ -258,6 +259,7 @@ def summarize(
     seed: int = 0,
     examples: int = 5,
     n_boot: int = 2000,
+    gold_labels: str | dict | LabelMap | None = None,
 ) -> Summary:
     """Per family and per rule: pairs, applicable, flips, violations, rates and 95 % intervals.
 
@@ -316,7 +318,7 @@ def summarize(
             for v in viol[:examples]
         ]
         families[fam] = g
-    accuracy = _accuracy(results)
+    accuracy = _accuracy(results, gold_labels)
     header = dict(results.header)
     if results.verdicts and all(v.source_score is None and v.variant_score is None for v in results.verdicts):
         header["labels_only_unjudged"] = sum(1 for v in results.verdicts
@@ -349,27 +351,119 @@ def _label_order(groups: dict[str, list[Verdict]], labels: dict[str, Any]) -> li
     return sorted(groups, key=lambda lab: (rank.get(lab.lower(), len(rank)), lab))
 
 
-def _same_label(gold: str, pred: str, labels: dict[str, Any]) -> bool:
-    """Gold and predicted label agree when their names match, case-insensitively.
+def parse_gold_labels(spec: str) -> dict[str, int] | LabelMap:
+    """``--gold-labels``: how the suite's gold labels map to polarity.
 
-    Differently spelled scales ("pos" gold, "positive" predicted) are not guessed at: the label
-    column must use the model's own label names.
+    Either a map, ``"1=negative,2=negative,3=neutral,4=positive,5=positive"`` (each gold label to
+    ``negative``/``neutral``/``positive`` or to -1/0/1), or an order from most negative to most
+    positive, ``"bad,meh,good"`` (read like ``--labels``: the middle of an odd scale is neutral).
     """
-    del labels
-    return gold.strip().lower() == pred.strip().lower()
+    items = [x.strip() for x in spec.split(",")]
+    if not spec.strip() or any(not x for x in items):
+        raise PairflipError(
+            f"--gold-labels {spec!r}: an empty item; expected GOLD=POLARITY pairs separated by commas "
+            f"(for example --gold-labels 1=negative,2=negative,3=neutral,4=positive,5=positive) "
+            f"or an order from most negative to most positive (for example --gold-labels bad,meh,good)"
+        )
+    if not any("=" in x for x in items):
+        return LabelMap.from_labels(items)
+    words = {"negative": -1, "neg": -1, "-1": -1, "neutral": 0, "neu": 0, "0": 0, "positive": 1, "pos": 1, "1": 1, "+1": 1}
+    out: dict[str, int] = {}
+    for i, item in enumerate(items, 1):
+        gold, sep, pol = (part.strip() for part in item.partition("="))
+        if not sep or not gold or pol.lower() not in words:
+            raise PairflipError(
+                f"--gold-labels {spec!r}: item {i} {item!r} is not GOLD=POLARITY with POLARITY one of "
+                f"negative, neutral, positive (or -1, 0, 1)"
+            )
+        if gold.lower() in out:
+            raise PairflipError(f"--gold-labels {spec!r}: the gold label {gold!r} is given twice")
+        out[gold.lower()] = words[pol.lower()]
+    return out
 
 
-def _accuracy(results: Results) -> dict[str, Any] | None:
-    """Accuracy of the model on sources that carry a gold label (each source counted once)."""
+def _gold_reader(golds: set[str], labels: dict[str, Any], gold_labels: str | dict | LabelMap | None):
+    """``(polarity_of_gold, polarity_of_prediction, how)`` or ``(None, None, problem)``.
+
+    Gold labels are compared with the model's labels by polarity, each through its own scale: the
+    model's through the label mapping in force, the gold labels through ``--gold-labels``, or the
+    model's own scale when every gold label is on it, or a recognised scale of their own (star
+    ratings, pos/neg, 0/1). Labels that none of these maps are reported, never counted as wrong.
+    """
+    try:
+        order = tuple(str(x) for x in labels.get("order") or ())
+        polarity = {str(k): int(v) for k, v in (labels.get("polarity") or {}).items()}
+        model_map = LabelMap(order=order, polarity=polarity) if order else None
+    except (PairflipError, KeyError, TypeError, ValueError):
+        model_map = None
+    if model_map is None:
+        return None, None, "the results name no label mapping for the model"
+    pred_pol = model_map.polarity_of
+    if isinstance(gold_labels, str):
+        gold_labels = parse_gold_labels(gold_labels)
+    if isinstance(gold_labels, dict):
+        missing = sorted(g for g in golds if g.lower() not in gold_labels)
+        if missing:
+            return None, None, f"--gold-labels does not map the gold label(s) {_quoted(missing)}"
+        return (lambda g: gold_labels[g.strip().lower()]), pred_pol, "through --gold-labels"
+    if isinstance(gold_labels, LabelMap):
+        missing = sorted(g for g in golds if gold_labels._lookup(g) is None)
+        if missing:
+            return None, None, f"--gold-labels does not hold the gold label(s) {_quoted(missing)}"
+        return gold_labels.polarity_of, pred_pol, f"through --gold-labels ({gold_labels.describe()})"
+    if all(model_map._lookup(g) is not None for g in golds):
+        return model_map.polarity_of, pred_pol, "on the model's own label scale"
+    try:
+        gold_map = LabelMap.recognise(golds)
+    except PairflipError:
+        return None, None, (
+            f"gold labels {_quoted(sorted(golds))} could not be mapped to the model's scale "
+            f"({model_map.describe()}); pass --gold-labels"
+        )
+    return gold_map.polarity_of, pred_pol, f"by polarity, gold labels read as {gold_map.describe()}"
+
+
+def accuracy_words(a: dict[str, Any] | None, *, short: bool = False) -> str | None:
+    """The accuracy fact as a reader sees it, or why there is none; None without gold labels."""
+    if not a:
+        return None
+    if a.get("rate") is None:
+        return f"not computed: {a.get('problem')}"
+    pct = lambda x: f"{100 * x:.1f}"  # noqa: E731
+    if short:
+        return f"accuracy {pct(a['rate'])} % on {a['sources']} sources"
+    how = f"; gold labels compared {a['mapped']}" if a.get("mapped") else ""
+    return (f"{pct(a['rate'])} % on {a['sources']} sources with a gold label ({a['correct']} right; "
+            f"95 % CI {pct(a['ci95'][0])}-{pct(a['ci95'][1])}{how})")
+
+
+def _quoted(items: list[str], most: int = 5) -> str:
+    shown = ", ".join(repr(x) for x in items[:most])
+    return shown + (f" and {len(items) - most} more" if len(items) > most else "")
+
+
+def _accuracy(results: Results, gold_labels: str | dict | LabelMap | None = None) -> dict[str, Any] | None:
+    """Accuracy of the model on sources that carry a gold label (each source counted once).
+
+    Right means the same polarity (see :func:`_gold_reader`); ``"mapped"`` says how gold labels
+    were read. When they cannot be read, ``rate`` is None and ``"problem"`` says why.
+    """
     labels = dict(results.header.get("labels") or {})
-    seen: dict[str, bool] = {}
+    firsts: dict[str, tuple[str, str]] = {}
     for v in results.verdicts:
         key = v.source_id or v.source
-        if v.label is None or key in seen:
+        if v.label is None or key in firsts:
             continue
-        seen[key] = _same_label(v.label, v.source_pred, labels)
-    if not seen:
+        firsts[key] = (v.label.strip(), v.source_pred)
+    if not firsts and gold_labels is None:
         return None
-    correct = sum(seen.values())
-    lo, hi = wilson_interval(correct, len(seen))
-    return {"correct": correct, "sources": len(seen), "rate": correct / len(seen), "ci95": [lo, hi]}
+    if not firsts:
+        return {"correct": 0, "sources": 0, "rate": None, "ci95": None, "mapped": None,
+                "problem": "--gold-labels was given but no source carries a gold label"}
+    gold_pol, pred_pol, how = _gold_reader({g for g, _ in firsts.values()}, labels, gold_labels)
+    if gold_pol is None:
+        return {"correct": 0, "sources": len(firsts), "rate": None, "ci95": None, "mapped": None, "problem": how}
+    correct = sum(gold_pol(g) == pred_pol(p) for g, p in firsts.values())
+    lo, hi = wilson_interval(correct, len(firsts))
+    return {"correct": correct, "sources": len(firsts), "rate": correct / len(firsts), "ci95": [lo, hi],
+            "mapped": how, "problem": None}

@@ -25,7 +25,7 @@ from rich.text import Text
 
 from pairflip.records import PairflipError
 from pairflip.report.diff import DEL, DEL_CLOSE, DEL_OPEN, INS, INS_CLOSE, INS_OPEN, join_chunks, word_diff
-from pairflip.report.summary import Example, GroupStats, Summary
+from pairflip.report.summary import Example, GroupStats, Summary, accuracy_words
 
 BAR_MIN, BAR_MAX = 6, 40
 NAME_MAX = 12  # model names longer than this are shortened in column headers
@@ -195,12 +195,7 @@ def header_facts(summary: Summary) -> list[tuple[str, str]]:
         iv += f" · margin {margin:g} (score change tolerated by strengthen/weaken/rise/fall)"
     facts.append(("interval", iv))
     if s.accuracy:
-        a = s.accuracy
-        facts.append((
-            "accuracy",
-            f"{pct(a['rate'])} % on {a['sources']} sources with a gold label "
-            f"({a['correct']} right; 95 % CI {pct(a['ci95'][0])}-{pct(a['ci95'][1])})",
-        ))
+        facts.append(("accuracy", accuracy_words(s.accuracy)))
     unjudged = s.labels_only_unjudged
     if unjudged is not None:
         facts.append(("scores", f"model gives labels only: {unjudged} strengthen/weaken pairs could not be judged (n/a)"))
@@ -487,7 +482,8 @@ def compare_header(summaries: Sequence[Summary]) -> RenderableType:
     for s in summaries:
         bits = [f"{total_pairs(s)} pairs"]
         if s.accuracy:
-            bits.append(f"accuracy {pct(s.accuracy['rate'])} % on {s.accuracy['sources']} sources")
+            bits.append(accuracy_words(s.accuracy, short=True) if s.accuracy.get("rate") is not None
+                        else "accuracy " + accuracy_words(s.accuracy))
         if len(hashes) > 1 and s.suite.get("sha256"):
             bits.append(f"suite {str(s.suite['sha256'])[:12]}")
         created = when(s.header.get("created"))

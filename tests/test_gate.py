@@ -175,6 +175,19 @@ def test_table_says_which_limit_failed_and_by_how_much():
     assert "\x1b[" not in text  # plain text
 
 
+@pytest.mark.parametrize("on", ["point", "upper", "lower"])
+def test_a_limit_never_wraps_mid_expression_at_80_columns(on):
+    res = _results(neg_viol=6, neg_n=20)
+    limits = ["negation/copula.violation <= 0.10", "reorder/shuffle.flip <= 50%"]
+    text = gate_text(run_gate(res, limits, on=on), width=80)
+    for limit in limits:
+        assert limit in text, text
+    assert max(len(line) for line in text.splitlines()) <= 80
+    # The heading says what is judged in words, not "judged on the point estimate (Wilson)".
+    words = {"point": "judged on the observed rate", "upper": "upper bound", "lower": "lower bound"}[on]
+    assert words in " ".join(text.split()) and "95% intervals: Wilson" in " ".join(text.split())
+
+
 # --------------------------------------------------------------------------- TOML
 
 
