@@ -48,11 +48,14 @@ def run_demo(*, out_dir: Path | None, seed: int, examples: int, console: Console
         suite = build_suite(load_sentences(), seed=seed)
         suite.header["corpus"] = "demo_data/sentences.txt"
         write_suite(suite, out / "suite.jsonl")
-        render_build_stats(suite.stats, out / "suite.jsonl", log)
+        # A temporary folder is deleted when the demo ends: its paths are not worth printing.
+        shown_suite = str(out / "suite.jsonl") if tmp is None else "demo suite (temporary; --out-dir DIR keeps it)"
+        render_build_stats(suite.stats, out / "suite.jsonl" if tmp is None else None, log)
         log.print(f"built the suite in {time.perf_counter() - t1:.1f}s", markup=False)
         summaries = []
         for name, m in models.items():
-            res = score(suite, PythonModel(m, spec=str(out / f"{name}.joblib"), name=name), suite_path=str(out / "suite.jsonl"))
+            spec = str(out / f"{name}.joblib") if tmp is None else f"{name} (demo model, not kept: --out-dir DIR keeps it)"
+            res = score(suite, PythonModel(m, spec=spec, name=name), suite_path=shown_suite)
             write_results(res, out / f"results-{name}.jsonl")
             summaries.append(summarize(res, examples=max(5, examples)))
         render(summaries, console=console, examples=examples)

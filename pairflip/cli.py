@@ -18,6 +18,21 @@ from rich.console import Console
 
 from pairflip.records import Interrupted, PairflipError
 
+
+
+def _plain_usage_name(self: Any) -> str:
+    """``CORPUS`` for a required argument, ``[CORPUS]`` for an optional one, as most CLIs write it."""
+    name = self.display_name_raw
+    if not self.required:
+        name = f"[{name}]"
+    return name + ("..." if self.nargs != 1 and not name.endswith("...") else "")
+
+
+# typer (0.29) writes a required argument as {corpus} in the usage line; the README and every
+# message write CORPUS.
+if hasattr(typer.core.TyperArgument, "_usage_display_name"):
+    typer.core.TyperArgument._usage_display_name = _plain_usage_name  # type: ignore[method-assign]
+
 app = typer.Typer(
     add_completion=False,
     no_args_is_help=True,
@@ -210,7 +225,7 @@ def _families_opt() -> Any:
 
 @app.command()
 def build(
-    corpus: Path = typer.Argument(..., help="Texts: .txt (one per line), .csv/.tsv, or .jsonl."),
+    corpus: Path = typer.Argument(..., metavar="CORPUS", help="Texts: .txt (one per line), .csv/.tsv, or .jsonl."),
     output: Path = typer.Option(..., "-o", "--output", help="Where to write the suite (.jsonl)."),
     families: Optional[str] = _families_opt(),
     text_column: Optional[str] = typer.Option(None, "--text-column", help="CSV/TSV column holding the text (default: text)."),
@@ -290,7 +305,7 @@ def build_to_file(corpus: Path, output: Path, *, families: Any, force: bool, **k
 
 @app.command()
 def score(
-    suite: Path = typer.Argument(..., help="A suite file made by `pairflip build`."),
+    suite: Path = typer.Argument(..., metavar="SUITE", help="A suite file made by `pairflip build`."),
     model: str = typer.Option(..., "--model", "-m", help="Model SPEC: path/model.joblib, package.module:name, http://host:port/path, or cmd:COMMAND. " + SECURITY_NOTE),
     output: Path = typer.Option(..., "-o", "--output", help="Where to write the results (.jsonl)."),
     labels: Optional[str] = typer.Option(None, "--labels", help="The model's labels from most negative to most positive, comma-separated."),
@@ -396,7 +411,7 @@ def score_to_file(suite_path: Path, model: str, output: Path, *, force: bool, ca
 
 @app.command()
 def show(
-    results: List[Path] = typer.Argument(..., help="One or more results files (several: side by side)."),
+    results: List[Path] = typer.Argument(..., metavar="RESULTS...", help="One or more results files (several: side by side)."),
     json_out: Optional[Path] = typer.Option(None, "--json", help='Write the summary as JSON (several files: {"version": 1, "kind": "pairflip-summaries", "models": [...]}).'),
     junit: Optional[Path] = typer.Option(None, "--junit", help="Write JUnit XML (a testsuite per family)."),
     markdown: Optional[Path] = typer.Option(None, "--markdown", help="Write a Markdown table (pull-request comment)."),
@@ -429,6 +444,7 @@ def show(
 
         res = [vet_results(read_results(p), vetted) for p in results]
         summaries = [summarize(r, cluster=cluster, seed=seed, examples=max(examples, 5), gold_labels=gold_map) for r in res]
+        _tell_apart(summaries, results)
         gate_outcomes = None
         if limit:
             from pairflip.report.gate import check, parse_limit
@@ -440,6 +456,17 @@ def show(
         render(summaries, console=_out_console(), examples=examples, families=family or None, gate=gate_outcomes)
         _export(summaries[0] if len(summaries) == 1 else summaries, json_out, junit, markdown, html, gate_outcomes,
                 examples=examples)
+
+
+def _tell_apart(summaries: list[Any], paths: list[Path]) -> None:
+    """Two runs of one model SPEC side by side get their results file's name after the model's."""
+    from collections import Counter
+
+    names = Counter(s.model_name for s in summaries)
+    files = Counter(p.name for p in paths)
+    for s, p in zip(summaries, paths):
+        if names[s.model_name] > 1:
+            s.model = dict(s.model, name=f"{s.model_name} ({p.name if files[p.name] == 1 else p})")
 
 
 def _gold_labels_option(spec: str | None) -> Any:
@@ -472,7 +499,7 @@ def _export(summary: Any, json_out: Path | None, junit: Path | None, markdown: P
 
 @app.command()
 def gate(
-    results: Path = typer.Argument(..., help="A results file."),
+    results: Path = typer.Argument(..., metavar="RESULTS", help="A results file."),
     limit: List[str] = typer.Option([], "--limit", "-l", help='A limit such as "negation.violation <= 0.10" or "reorder/shuffle.flip < 20%". Repeatable.'),
     limits_file: Optional[Path] = typer.Option(None, "--limits", help="A TOML file with [tool.pairflip.gate] limits (or a pyproject.toml)."),
     on: Optional[str] = typer.Option(None, "--on", help="Judge the point estimate, or the upper/lower bound of the 95% interval: point (default), upper or lower; confirmed: the rate over the pairs a person accepted (needs --vetted)."),
@@ -516,8 +543,8 @@ def gate(
 
 @app.command()
 def compare(
-    old: Path = typer.Argument(..., help="Results of the old (baseline) model."),
-    new: Path = typer.Argument(..., help="Results of the new model, on the same suite."),
+    old: Path = typer.Argument(..., metavar="OLD_RESULTS", help="Results of the old (baseline) model."),
+    new: Path = typer.Argument(..., metavar="NEW_RESULTS", help="Results of the new model, on the same suite."),
     json_out: Optional[Path] = typer.Option(None, "--json", help="Write the comparison as JSON."),
     examples: int = typer.Option(3, "--examples", help="Newly broken pairs shown per family."),
     force: bool = typer.Option(False, "--force", help="Overwrite the --json file if it exists."),
@@ -680,7 +707,7 @@ def demo(
 
 @app.command()
 def vet(
-    file: Path = typer.Argument(..., help="A suite (from `build`) or a results file (from `score`)."),
+    file: Path = typer.Argument(..., metavar="FILE", help="A suite (from `build`) or a results file (from `score`)."),
     decisions: Path = typer.Option(..., "--decisions", "-d", help="The decisions file: created, or appended to (one JSON line per answer)."),
     only: str = typer.Option("unvetted", "--only", help="unvetted (default), violations (results files: the pairs the model failed) or all."),
     rule: List[str] = typer.Option([], "--rule", help="Only this rule or family (repeatable)."),
@@ -749,7 +776,7 @@ def _make_out_dir(out_dir: Path) -> None:
 
 @app.command()
 def lexicon(
-    corpus: Path = typer.Argument(..., help="Labelled texts: .csv/.tsv (--label-column) or .jsonl (--label-field)."),
+    corpus: Path = typer.Argument(..., metavar="CORPUS", help="Labelled texts: .csv/.tsv (--label-column) or .jsonl (--label-field)."),
     output: Path = typer.Option(..., "-o", "--output", help="Where to write the learned lexicon (TSV for `build --lexicon`)."),
     label_column: Optional[str] = typer.Option(None, "--label-column", help="CSV/TSV column holding each text's label."),
     text_column: Optional[str] = typer.Option(None, "--text-column", help="CSV/TSV column holding the text (default: text)."),

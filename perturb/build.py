@@ -94,6 +94,8 @@ class BuildStats:
 
     sources: int = 0  # distinct non-empty texts read
     sources_with_pairs: int = 0  # texts that gave at least one pair
+    sources_with_tested_pairs: int = 0  # texts that gave a pair with an expectation (not only diagnostic ones)
+    diagnostic_pairs: int = 0  # pairs of diagnostic rules (should "none", e.g. reorder/shuffle)
     sentences: int = 0  # with unit "sentence": the distinct sentences made sources (or skipped)
     skipped: dict[str, int] = field(default_factory=lambda: Counter())  # reason -> count of sources
     made: Counter = field(default_factory=Counter)  # rule -> pairs
@@ -104,6 +106,8 @@ class BuildStats:
         return {
             "sources": self.sources,
             "sources_with_pairs": self.sources_with_pairs,
+            "sources_with_tested_pairs": self.sources_with_tested_pairs,
+            "diagnostic_pairs": self.diagnostic_pairs,
             "sentences": self.sentences,
             "skipped": dict(self.skipped),
             "made": dict(self.made),
@@ -315,7 +319,7 @@ def iter_pairs(
             out.extend(_pairs_for_doc(doc, st, modules[fam], rules, seed, lexicon, max_per_rule, into, recheck_nlp))
         return out
 
-    last_text = [""]  # the text whose pairs were counted last (a text's sources come in a row)
+    last_text = ["", ""]  # the texts counted last, any pair / a tested pair (a text's sources come in a row)
 
     def counted(pairs: list[Pair]) -> list[Pair]:
         if pairs:
@@ -323,6 +327,10 @@ def iter_pairs(
             if text != last_text[0]:
                 last_text[0] = text
                 stats.sources_with_pairs += 1
+            stats.diagnostic_pairs += sum(1 for p in pairs if p.should == "none")
+            if text != last_text[1] and any(p.should != "none" for p in pairs):
+                last_text[1] = text
+                stats.sources_with_tested_pairs += 1
         return pairs
 
     from pairflip.perturb import overlap as _overlap

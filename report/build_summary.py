@@ -26,14 +26,22 @@ def build_stats_table(stats: Any) -> Table:
 def render_build_stats(stats: Any, output: Path | str | None, console: Console) -> None:
     console.print(build_stats_table(stats))
     skipped = sum(stats.skipped.values())
+    tested = getattr(stats, "sources_with_tested_pairs", stats.sources_with_pairs)
+    diagnostic = getattr(stats, "diagnostic_pairs", 0)
+    pairs = f"{stats.pairs} pairs"
+    if diagnostic:
+        pairs += f" ({stats.pairs - diagnostic} with an expectation, {diagnostic} diagnostic)"
     line = (
-        f"{stats.sources} source texts, {stats.sources_with_pairs} gave pairs; "
-        f"{stats.pairs} pairs" + (f"; skipped {skipped} texts ({', '.join(stats.skipped)})" if skipped else "")
+        f"{stats.sources} source texts, {stats.sources_with_pairs} gave pairs, {tested} gave a pair with an expectation; "
+        + pairs + (f"; skipped {skipped} source{'s' if skipped != 1 else ''} ({', '.join(stats.skipped)})" if skipped else "")
     )
     if output is not None:
         line += f"; wrote {output}"
     console.print(line, markup=False, highlight=False, soft_wrap=True)
     if stats.sources and stats.sources_with_pairs == 0:
         console.print("no pairs were made: is the corpus English review-like text?", markup=False)
+    elif stats.sources and tested == 0:
+        console.print("no pair with an expectation was made (only diagnostic ones): is the corpus English "
+                      "review-like text?", markup=False)
     for w in stats.warnings[:5]:
         console.print(f"warning: {w}", markup=False, soft_wrap=True)

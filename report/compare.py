@@ -39,6 +39,12 @@ class BrokenPair:
     new_source_pred: str
     new_variant_pred: str
     severity: float  # of the new model's violation (see summary.severity)
+    # Polarity scores (-1..1) when the models give them: a strengthen/weaken regression keeps the
+    # labels and moves only the scores.
+    old_source_score: float | None = None
+    old_variant_score: float | None = None
+    new_source_score: float | None = None
+    new_variant_score: float | None = None
 
     def to_dict(self) -> dict[str, Any]:
         return dict(self.__dict__)
@@ -80,7 +86,8 @@ class RuleComparison:
 class FamilyComparison(RuleComparison):
     p_holm: float | None = None
     rules: dict[str, RuleComparison] = field(default_factory=dict)
-    newly_broken: list[BrokenPair] = field(default_factory=list)  # most confident first
+    newly_broken: list[BrokenPair] = field(default_factory=list)  # most confident first, at most ``examples``
+    broken: int = 0  # every pair violated by the new model only (newly_broken holds the first ones)
 
     @property
     def old_rate(self) -> float:
@@ -113,6 +120,7 @@ class FamilyComparison(RuleComparison):
                 "p_holm": self.p_holm,
                 "rules": {r: rc.to_dict() for r, rc in self.rules.items()},
                 "newly_broken": [b.to_dict() for b in self.newly_broken],
+                "newly_broken_total": self.broken,
             }
         )
         return out
@@ -232,9 +240,11 @@ def compare(old: Results, new: Results, *, examples: int = 10) -> Comparison:
             rc.p_value = mcnemar_exact(rc.only_old, rc.only_new) if rc.paired else None
         fc.p_value = mcnemar_exact(fc.only_old, fc.only_new) if fc.paired else None
         pairs = sorted(broken.get(fam, []), key=lambda ab: (-severity(ab[1]), ab[1].id))
+        fc.broken = len(pairs)
         fc.newly_broken = [
             BrokenPair(b.id, b.rule, b.should, b.source, b.variant, a.source_pred, a.variant_pred,
-                       b.source_pred, b.variant_pred, severity(b))
+                       b.source_pred, b.variant_pred, severity(b), a.source_score, a.variant_score,
+                       b.source_score, b.variant_score)
             for a, b in pairs[: max(0, examples)]
         ]
     tested = [f for f, fc in families.items() if fc.p_value is not None]

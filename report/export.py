@@ -32,7 +32,7 @@ from typing import Any, Sequence
 
 from pairflip.report.diff import DEL_CLOSE, DEL_OPEN, INS_CLOSE, INS_OPEN, word_diff
 from pairflip.report.diff import render as render_diff
-from pairflip.report.terminal import describe_interval, header_facts, pct, short_rule, total_pairs, when
+from pairflip.report.terminal import describe_interval, header_facts, pct, short_rule, should_words, total_pairs, when
 from pairflip.report.summary import SUMMARY_VERSION, Example, GroupStats, Summary, accuracy_words
 
 MULTI_KIND = "pairflip-summaries"
@@ -243,7 +243,7 @@ def to_markdown(summary_or_list: Summary | Sequence[Summary], gate: Any = None, 
                 (f"{md(fam)}/{md(short_rule(r, fam))}", rg, r) for r, rg in fg.rules.items() if len(fg.rules) > 1 or r in gm]
             for name, g, target in rows:
                 v, ci = _viol_md(g)
-                line = f"| {name} | {md(g.should)} | {g.pairs} | {pct(g.flip_rate)} | {v} | {ci} | {g.not_applicable} |"
+                line = f"| {name} | {md(should_words(g))} | {g.pairs} | {pct(g.flip_rate)} | {v} | {ci} | {g.not_applicable} |"
                 if gates:
                     line += f" {_md_gate(gm.get(target))} |"
                 out.append(line)
@@ -257,7 +257,7 @@ def to_markdown(summary_or_list: Summary | Sequence[Summary], gate: Any = None, 
         out.append("| family | should | " + " | ".join(md(s.model_name) for s in items) + " |")
         out.append("|:--|:--|" + "--:|" * len(items))
         for fam in fams:
-            should = next((s.families[fam].should for s in items if fam in s.families), "")
+            should = next((should_words(s.families[fam]) for s in items if fam in s.families), "")
             cells = []
             for s, gm in zip(items, gms):
                 fg = s.families.get(fam)
@@ -444,7 +444,7 @@ def _html_table(items: Sequence[Summary], families: Sequence[str], gates: list[l
         for s in items:
             for r in (s.families[fam].rules if fam in s.families else {}):
                 rules.setdefault(r, None)
-        should = next((s.families[fam].should for s in items if fam in s.families), "")
+        should = next((should_words(s.families[fam]) for s in items if fam in s.families), "")
         r = f'<tr class="family"><td>{_e(fam)}</td><td>{_e(should)}</td>'
         for s, gm in zip(items, gms):
             r += _html_stats(s.families.get(fam), many)

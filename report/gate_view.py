@@ -161,18 +161,29 @@ def comparison_table(comp: Any) -> Table:
     return t
 
 
+def _side(pred_s: str, pred_v: str, score_s: float | None, score_v: float | None) -> str:
+    if score_s is None or score_v is None:
+        return f"{pred_s} -> {pred_v}"
+    return f"{pred_s} {score_s:+.2f} -> {pred_v} {score_v:+.2f}"
+
+
 def broken_examples(comp: Any, examples: int) -> RenderableType | None:
     rows = [(fam, b) for fam, fc in comp.families.items() for b in fc.newly_broken[: max(0, examples)]]
     if not rows:
         return None
-    t = Table(title="newly broken pairs (violated by the new model only)", title_justify="left", show_lines=True,
-              box=box.SIMPLE_HEAD)
+    shown = {fam: min(len(fc.newly_broken), max(0, examples)) for fam, fc in comp.families.items()}
+    counts = "; ".join(f"{fam}: {shown[fam]} of {getattr(fc, 'broken', len(fc.newly_broken))} shown"
+                       for fam, fc in comp.families.items() if shown[fam])
+    scored = any(b.new_source_score is not None for _f, b in rows)
+    t = Table(title=f"newly broken pairs (violated by the new model only; {counts})", title_justify="left",
+              show_lines=True, box=box.SIMPLE_HEAD)
     t.add_column("rule / should", no_wrap=True)
     t.add_column("source -> variant", ratio=1)
-    t.add_column("labels", no_wrap=True)
+    t.add_column("labels and scores (-1..1)" if scored else "labels", no_wrap=True)
     for _fam, b in rows:
         _row(t, f"{b.rule}\n{b.should}", f"{b.source}\n-> {b.variant}",
-             f"old {b.old_source_pred} -> {b.old_variant_pred}\nnew {b.new_source_pred} -> {b.new_variant_pred}")
+             f"old {_side(b.old_source_pred, b.old_variant_pred, b.old_source_score, b.old_variant_score)}\n"
+             f"new {_side(b.new_source_pred, b.new_variant_pred, b.new_source_score, b.new_variant_score)}")
     return t
 
 

@@ -202,6 +202,10 @@ def severity(v: Verdict) -> float:
         return max(0.0, abs(s) - abs(t)) + (1.0 if s * t < 0 else 0.0)
     if v.should == "weaken":
         return max(0.0, abs(t) - abs(s)) + (1.0 if s * t < 0 else 0.0)
+    if v.should == "rise":
+        return max(0.0, s - t)  # the score fell instead
+    if v.should == "fall":
+        return max(0.0, t - s)
     return 0.0
 
 

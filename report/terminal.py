@@ -117,6 +117,19 @@ def short_name(name: str, n: int = NAME_MAX) -> str:
     return name if len(name) <= n else name[: n - 1] + "…"
 
 
+def column_names(summaries: Sequence[Summary], n: int = NAME_MAX) -> list[str]:
+    """Column headers for models side by side: their names when all fit in ``n`` characters and
+    differ, else the letters A, B, C... that the header spells out in full (never a cut name)."""
+    names = [s.model_name for s in summaries]
+    if all(len(x) <= n for x in names) and len(set(names)) == len(names):
+        return names
+    return [_letter(i) for i in range(len(names))]
+
+
+def _letter(i: int) -> str:
+    return chr(ord("A") + i) if i < 26 else f"M{i + 1}"
+
+
 def when(created: Any) -> str:
     if not created:
         return ""
@@ -157,6 +170,23 @@ def describe_interval(summary: Summary) -> str:
     return "95 % Wilson score"
 
 
+def should_words(g: GroupStats) -> str:
+    """A family's expectation as a reader needs it: its rules' expectations when they differ."""
+    if g.should != "mixed" or not g.rules:
+        return g.should
+    seen: list[str] = []
+    for r in g.rules.values():
+        if r.should != "none" and r.should not in seen:
+            seen.append(r.should)
+    return "/".join(seen) or g.should
+
+
+def diagnostic_pairs(summary: Summary) -> int:
+    """Pairs of diagnostic rules (no expectation, such as reorder/shuffle): shown apart."""
+    return sum(r.pairs for g in summary.families.values() if g.should != "none"
+               for r in g.rules.values() if r.should == "none")
+
+
 def total_pairs(summary: Summary) -> int:
     """Every scored pair, diagnostic rules included (a family's own count leaves them out)."""
     total = 0
@@ -183,6 +213,9 @@ def header_facts(summary: Summary) -> list[tuple[str, str]]:
         suite_bits.append(f"seed {gen['seed']}")
     facts.append(("suite", " · ".join(suite_bits) or "unknown"))
     counts = f"{total_pairs(s)} pairs"
+    diag = diagnostic_pairs(s)
+    if diag:
+        counts += f" ({total_pairs(s) - diag} with an expectation, counted in the families; {diag} diagnostic, shown apart)"
     texts = s.header.get("texts_predicted")
     if texts is not None:
         counts += f" · {texts} distinct texts"
@@ -280,7 +313,7 @@ def family_table(
         elif len(fg.rules) == 1:
             pass  # a single rule says the same as its family
     headers = ["family / rule", "should"] + STAT_HEADERS
-    cells = [[name, s.should] + _stat_cells(s, g) for name, s, _, _ in rows]
+    cells = [[name, should_words(s)] + _stat_cells(s, g) for name, s, _, _ in rows]
     fixed = [_width_of([h] + [c[i] for c in cells]) for i, h in enumerate(headers)]
     with_gate = gate is not None
     if with_gate:
@@ -419,6 +452,7 @@ def examples_section(
     if n <= 0:
         return parts
     many = len(summaries) > 1
+    explained = False
     for fam in families:
         blocks: list[RenderableType] = []
         for s in summaries:
@@ -431,13 +465,17 @@ def examples_section(
             else:
                 lead = Text("")
             if not shown:
-                lead.append(f"no violations in {fg.applicable} pairs", style=S_DIM)
+                lead.append(f"no violations in {fg.applicable} judged pairs", style=S_DIM)
                 blocks.append(lead)
                 continue
-            lead.append(f"{fg.violations} violation{'s' if fg.violations != 1 else ''} in {fg.applicable} pairs; "
-                        f"the {len(shown)} most confident:" if len(shown) > 1 else
-                        f"{fg.violations} violation{'s' if fg.violations != 1 else ''} in {fg.applicable} pairs; "
-                        f"the most confident:", style=S_DIM)
+            most = f"the {len(shown)} most confident" if len(shown) > 1 else "the most confident"
+            why = ""
+            if not explained and any(e.severity for e in shown):
+                explained = True  # said once, at the first severity shown
+                why = (" (severity: how far the polarity score, on -1..1, moved against the expectation; "
+                       "+1 when it crossed to the other side)")
+            lead.append(f"{fg.violations} violation{'s' if fg.violations != 1 else ''} in {fg.applicable} judged pairs; "
+                        f"{most}{why}:", style=S_DIM)
             blocks.append(lead)
             for i, e in enumerate(shown, 1):
                 blocks.append(example_block(i, e, g))
@@ -479,7 +517,8 @@ def compare_header(summaries: Sequence[Summary]) -> RenderableType:
     t.add_column(style="bold cyan", no_wrap=True)
     t.add_column(overflow="fold")
     hashes = {s.suite.get("sha256") for s in summaries}
-    for s in summaries:
+    tags = column_names(summaries)
+    for i, s in enumerate(summaries):
         bits = [f"{total_pairs(s)} pairs"]
         if s.accuracy:
             bits.append(accuracy_words(s.accuracy, short=True) if s.accuracy.get("rate") is not None
@@ -489,7 +528,13 @@ def compare_header(summaries: Sequence[Summary]) -> RenderableType:
         created = when(s.header.get("created"))
         if created:
             bits.append(created.split(" ")[0])
-        t.add_row(short_name(s.model_name, 20), " · ".join(bits))
+        label_words = describe_labels(s.labels)
+        if len({describe_labels(x.labels) for x in summaries}) > 1:
+            bits.append(f"labels {label_words}")  # each model's own mapping when they differ
+        tag = tags[i]
+        if tag != s.model_name:
+            bits.insert(0, s.model_name)
+        t.add_row(tag, " · ".join(bits))
     first = summaries[0]
     facts = dict(header_facts(first))
     rows: list[RenderableType] = [Text(f"pairflip report · {len(summaries)} models side by side", style="bold"), t]
@@ -498,7 +543,8 @@ def compare_header(summaries: Sequence[Summary]) -> RenderableType:
     info.add_column(overflow="fold")
     if len(hashes) == 1:
         info.add_row("suite", facts.get("suite", ""))
-    info.add_row("labels", facts.get("labels", ""))
+    if len({describe_labels(x.labels) for x in summaries}) == 1:
+        info.add_row("labels", facts.get("labels", ""))
     info.add_row("interval", facts.get("interval", ""))
     rows.append(info)
     if len(hashes) > 1:
@@ -541,8 +587,7 @@ def compare_wide(summaries: Sequence[Summary], families: Sequence[str], g: Glyph
     """One column group per model: violation %, 95 % CI, flip %, (gate)."""
     headers = ["family / rule", "should"]
     justify = ["left", "left"]
-    for s in summaries:
-        name = short_name(s.model_name)
+    for name in column_names(summaries):
         headers += ["│", f"{name}\nviol %", "\n95% CI", "\nflip %"] + (["\ngate"] if gate else [])
         justify += ["left", "right", "left", "right"] + (["left"] if gate else [])
     t = _table(headers, justify)
@@ -582,10 +627,11 @@ def compare_stacked(summaries: Sequence[Summary], families: Sequence[str], width
     gates = [gate_by_target(x) for x in gate] if gate else [{} for _ in summaries]
     headers = ["family", "model"] + STAT_HEADERS
     rows: list[tuple[str, str, GroupStats | None, dict[str, list[Any]], str]] = []
+    names = column_names(summaries)
     for fam in families:
         for i, (s, gm) in enumerate(zip(summaries, gates)):
             label = fam if i == 0 else (f"should {_should(summaries, fam)}" if i == 1 else "")
-            rows.append((label, short_name(s.model_name), s.families.get(fam), gm, fam))
+            rows.append((label, names[i], s.families.get(fam), gm, fam))
     cells = [[lab, name] + (_stat_cells(st, g) if st else ["0", g.dash, g.dash, "", "0"])
              for lab, name, st, _, _ in rows]
     if len(summaries) == 1:
@@ -616,7 +662,7 @@ def compare_rules_stacked(summaries: Sequence[Summary], families: Sequence[str],
     rows = [(fam, rule) for fam in families for rule in all_rules(summaries, fam)]
     if not any(len(all_rules(summaries, f)) > 1 for f in families):
         return None
-    headers = ["rule", "should"] + [f"{short_name(s.model_name, 9)}\nviol %" for s in summaries]
+    headers = ["rule", "should"] + [f"{name}\nviol %" for name in column_names(summaries, 9)]
     t = _table(headers, ["left", "left"] + ["right"] * len(summaries))
     for i, (fam, rule) in enumerate(rows):
         row: list[Any] = [rule, _should(summaries, fam, rule)]

@@ -321,13 +321,13 @@ def test_duplicate_lines_are_made_once(tmp_path, capsys):
     assert len({(p.rule, p.source) for p in pairs}) == len(pairs)  # max_per_rule=1: one per rule and source
 
 
-SUMMARY = re.compile(r"(\d+) source texts, (\d+) gave pairs; (\d+) pairs")
+SUMMARY = re.compile(r"(\d+) source texts, (\d+) gave pairs, (\d+) gave a pair with an expectation; (\d+) pairs")
 
 
 def _summary(err: str) -> tuple[int, int, int]:
     m = SUMMARY.search(" ".join(err.split()))
     assert m, f"no build summary in {err!r}"
-    return int(m.group(1)), int(m.group(2)), int(m.group(3))
+    return int(m.group(1)), int(m.group(2)), int(m.group(4))
 
 
 def test_emoji_urls_html_and_other_languages_do_not_crash(tmp_path, capsys):
@@ -368,6 +368,8 @@ def test_only_foreign_text_says_no_pairs(tmp_path, capsys):
     assert sources == 3
     if n_pairs == 0:
         assert "no pairs were made" in err
+    elif int(SUMMARY.search(" ".join(err.split())).group(3)) == 0:
+        assert "no pair with an expectation was made" in err
 
 
 def test_text_over_the_pipeline_max_length_is_skipped_with_a_warning(tmp_path, capsys, nlp, monkeypatch):
@@ -533,7 +535,7 @@ def test_long_text_is_skipped_unparsed_and_counted_with_unit_text(tmp_path, caps
     flat = " ".join(err.split())
     sources, with_pairs, _ = _summary(flat)
     assert sources == 3 and with_pairs == 2
-    assert "skipped 1 texts (more than 30 words)" in flat
+    assert "skipped 1 source (more than 30 words)" in flat
     assert long_line not in _sources(out)
     assert parsed == [REVIEWS[0], REVIEWS[2]]  # counted by the tokenizer, never parsed
 
@@ -549,5 +551,5 @@ def test_thirty_words_pass_thirty_one_are_skipped(tmp_path, capsys, unit, reason
     code, _, err = run(["build", corpus, "-o", out, "--unit", unit, "--families", "reorder/shuffle"], capsys)
     assert code == 0, err
     flat = " ".join(err.split())
-    assert f"skipped 1 texts ({reason})" in flat
+    assert f"skipped 1 source ({reason})" in flat
     assert set(_sources(out)) == {t30}

@@ -79,3 +79,18 @@ def test_demo_command_prints_all_families_for_each_model(tmp_path, capsys):
         assert (tmp_path / f"results-{name}.jsonl").exists()
         assert (tmp_path / f"{name}.joblib").exists()
     assert (tmp_path / "suite.jsonl").exists()
+
+
+def test_demo_without_out_dir_names_no_path_in_a_deleted_folder(capsys):
+    # The temporary folder is gone when the demo ends: printing a path into it misleads.
+    import tempfile
+
+    from pairflip.cli import main
+
+    with pytest.raises(SystemExit) as exc:
+        main(["demo", "--examples", "0"])
+    assert exc.value.code in (0, None)
+    out, err = capsys.readouterr()
+    assert tempfile.gettempdir() not in out + err
+    assert "--out-dir DIR keeps it" in " ".join(out.split())
+    assert "gave a pair with an expectation" in err

@@ -10,6 +10,7 @@ from pathlib import Path
 import pytest
 
 from pairflip import cli
+from pairflip.labels import LabelMap
 from pairflip.records import PairflipError, Results, Verdict
 from pairflip.report.summary import parse_gold_labels, summarize
 
@@ -22,7 +23,8 @@ def V(i, sp, label, family="negation", rule="negation/copula", should="flip", vp
 
 def R(verdicts, order=("negative", "positive")):
     return Results(header={"suite": {"sha256": "x" * 64}, "model": {"name": "toy"},
-                           "labels": {"order": list(order)}}, verdicts=list(verdicts))
+                           "labels": LabelMap(order=tuple(order), source="recognised").to_dict()},
+                   verdicts=list(verdicts))
 
 
 # --------------------------------------------------------------------------- accuracy
@@ -198,3 +200,76 @@ def test_every_audit_option_has_a_help_line():
     audit = command.commands["audit"]
     missing = [p.name for p in audit.params if not getattr(p, "help", None) and p.param_type_name == "option"]
     assert missing == []
+
+
+# --------------------------------------------------------------------------- compare shows scores
+
+
+def test_compare_newly_broken_shows_scores_and_how_many_are_shown(tmp_path, capsys):
+    from pairflip.files import write_results
+
+    def pair(i, new):
+        # strengthen: "very sturdy" must score at least as positive as "sturdy". The new model
+        # keeps both labels and lowers the score: only the scores show the regression.
+        vs_score = 0.30 if new else 0.80
+        return Verdict(id=f"p{i}", source_pred="positive", variant_pred="positive",
+                       verdict="violation" if new else "ok", source_score=0.60, variant_score=vs_score,
+                       family="intensifier", rule="intensifier/amplify", should="strengthen",
+                       source=f"The tent {i} is sturdy.", variant=f"The tent {i} is very sturdy.",
+                       source_id=f"s{i}", label=None)
+
+    old = tmp_path / "old.jsonl"
+    new = tmp_path / "new.jsonl"
+    write_results(R([pair(i, False) for i in range(9)], order=("negative", "neutral", "positive")), old)
+    write_results(R([pair(i, True) for i in range(9)], order=("negative", "neutral", "positive")), new)
+    code, out, err = run(["compare", old, new, "--examples", "3"], capsys)
+    flat = " ".join(out.split())
+    assert code == 0, err
+    assert "intensifier: 3 of 9 shown" in flat
+    assert "old positive +0.60 -> positive +0.80" in flat and "new positive +0.60 -> positive +0.30" in flat
+
+
+@pytest.mark.parametrize("command,usage", [
+    ("build", "Usage: pairflip build [OPTIONS] CORPUS"), ("score", "Usage: pairflip score [OPTIONS] SUITE"),
+    ("audit", "Usage: pairflip audit [OPTIONS] CORPUS"), ("show", "Usage: pairflip show [OPTIONS] RESULTS..."),
+    ("compare", "Usage: pairflip compare [OPTIONS] OLD_RESULTS NEW_RESULTS"),
+])
+def test_usage_lines_name_arguments_in_capitals_without_braces(command, usage, capsys):
+    code, out, err = run([command], capsys)
+    assert code == 2 and usage in out + err and "{" not in (out + err).splitlines()[0]
+
+
+def test_side_by_side_tells_two_runs_of_one_spec_apart_and_shows_each_label_mapping(tmp_path, capsys):
+    from pairflip.files import write_results
+
+    long_name = "my_team.models.sentiment_tfidf:predict"
+    vs = [V(1, "positive", None), V(2, "negative", None, vp="negative", verdict="violation")]
+    a, b = tmp_path / "monday.jsonl", tmp_path / "friday.jsonl"
+    ra = R(vs)
+    ra.header["model"] = {"name": long_name}
+    rb = R(vs, order=("negative", "neutral", "positive"))
+    rb.header["model"] = {"name": long_name}
+    write_results(ra, a)
+    write_results(rb, b)
+    code, out, err = run(["show", a, b, "--examples", "0"], capsys)
+    assert code == 0, err
+    flat = " ".join(out.split())
+    assert f"{long_name} (monday.jsonl)" in flat and f"{long_name} (friday.jsonl)" in flat
+    assert "…" not in out  # no model name cut
+    assert "labels negative -1, positive +1" in flat and "labels negative -1, neutral +0, positive +1" in flat
+
+
+def test_mixed_family_shows_its_rules_expectations_and_counts_say_what_they_count(tmp_path, capsys):
+    from pairflip.files import write_results
+
+    vs = [V(1, "positive", None, family="intensifier", rule="intensifier/amplify", should="strengthen"),
+          V(2, "positive", None, family="intensifier", rule="intensifier/soften", should="weaken"),
+          V(3, "positive", None, family="reorder", rule="reorder/shuffle", should="none"),
+          V(4, "positive", None, family="reorder", rule="reorder/coordination", should="hold")]
+    p = tmp_path / "r.jsonl"
+    write_results(R(vs), p)
+    code, out, err = run(["show", p], capsys)
+    flat = " ".join(out.split())
+    assert code == 0, err
+    assert "strengthen/weaken" in flat and " mixed " not in flat
+    assert "4 pairs (3 with an expectation, counted in the families; 1 diagnostic, shown apart)" in flat
