@@ -508,6 +508,11 @@ def gate(
     cluster: Optional[str] = typer.Option(None, "--cluster", help="'source': bootstrap intervals over source sentences."),
     seed: int = typer.Option(0, "--seed", help="Seed of the cluster bootstrap."),
     vetted: Optional[Path] = typer.Option(None, "--vetted", help="A decisions file from `pairflip vet`: rejected pairs left out, changed expectations applied."),
+    json_out: Optional[Path] = typer.Option(None, "--json", help="Also write the summary with the gate's outcome as JSON."),
+    junit: Optional[Path] = typer.Option(None, "--junit", help="Also write JUnit XML: a test case per limit (failed when crossed) and per rule."),
+    markdown: Optional[Path] = typer.Option(None, "--markdown", help="Also write a Markdown table with the limits (pull-request comment)."),
+    html: Optional[Path] = typer.Option(None, "--html", help="Also write one self-contained HTML page with the limits."),
+    force: bool = typer.Option(False, "--force", help="Overwrite export files that already exist."),
 ) -> None:
     """Exit 1 when a limit is crossed (or the model regressed against --baseline).
 
@@ -526,6 +531,8 @@ def gate(
                 parse_limit(x)  # before reading files; the message keeps its caret line
         except LimitSyntaxError as err:
             raise fail(str(err)) from None
+        exports = [("--json", json_out), ("--junit", junit), ("--markdown", markdown), ("--html", html)]
+        _check_outputs(exports, [results] + ([baseline] if baseline else []) + ([vetted] if vetted else []), force)
         from pairflip.report.vetted import vet_results
 
         res = vet_results(read_results(results), vetted)
@@ -534,6 +541,10 @@ def gate(
         from pairflip.report.gate_view import render_gate
 
         render_gate(outcome, _out_console())
+        if any(path is not None for _, path in exports):
+            from pairflip.report import summarize
+
+            _export(summarize(res, cluster=cluster, seed=seed), json_out, junit, markdown, html, outcome.limits)
         if not outcome.passed:
             raise typer.Exit(1)
 

@@ -273,3 +273,21 @@ def test_mixed_family_shows_its_rules_expectations_and_counts_say_what_they_coun
     assert code == 0, err
     assert "strengthen/weaken" in flat and " mixed " not in flat
     assert "4 pairs (3 with an expectation, counted in the families; 1 diagnostic, shown apart)" in flat
+
+
+def test_gate_writes_the_exports_with_its_limits(star_results, tmp_path, capsys):
+    j, js = tmp_path / "gate.xml", tmp_path / "gate.json"
+    code, out, err = run(["gate", star_results, "--limit", "negation.violation <= 0.10", "--junit", j, "--json", js], capsys)
+    assert code == 1, out + err
+    root = ET.parse(j).getroot()
+    failed = [c.get("name") for c in root.iter("testcase") if c.find("failure") is not None]
+    assert failed == ["limit: negation.violation <= 0.10"]
+    assert json.loads(js.read_text(encoding="utf-8"))["gate"][0]["passed"] is False
+    # Outputs are checked before the work: an existing file needs --force, an input is never one.
+    code, _, err = run(["gate", star_results, "--limit", "negation.violation <= 0.10", "--junit", j], capsys)
+    assert code == 2 and "--force" in err
+    code, _, err = run(["gate", star_results, "--limit", "negation.violation <= 0.10", "--json", star_results,
+                        "--force"], capsys)
+    assert code == 2 and "input" in err
+    code, _, _ = run(["gate", star_results, "--limit", "negation.violation <= 0.10", "--junit", j, "--force"], capsys)
+    assert code == 1
