@@ -453,7 +453,7 @@ def _html_table(items: Sequence[Summary], families: Sequence[str], gates: list[l
         h.append(r + "</tr>")
         if len(rules) > 1 or any(rule in gm for gm in gms for rule in rules):
             for rule in rules:
-                rs = next((s.families[fam].rules[rule].should for s in items
+                rs = next((should_words(s.families[fam].rules[rule]) for s in items
                            if fam in s.families and rule in s.families[fam].rules), "")
                 r = f'<tr class="rule"><td>{_e(short_rule(rule, fam))}</td><td>{_e(rs)}</td>'
                 for s, gm in zip(items, gms):

@@ -91,6 +91,7 @@ class GroupStats:
     by_prediction: dict[str, "GroupStats"] = field(default_factory=dict)  # by predicted source label
     rejected: int = 0  # pairs of this group a person rejected (--vetted); left out of the counts above
     confirmed: "GroupStats | None" = None  # the same numbers over the pairs a person kept (--vetted)
+    shoulds: list[str] = field(default_factory=list)  # the distinct expectations of its pairs (when "mixed")
 
     @property
     def vetted(self) -> int:
@@ -251,6 +252,15 @@ def cluster_key(v: Verdict) -> str:
     return m.group(1) if m else sid
 
 
+_SHOULD_ORDER = ("flip", "hold", "strengthen", "weaken", "rise", "fall", "none")
+
+
+def _shoulds(vs: Iterable[Verdict]) -> list[str]:
+    """The distinct expectations of a group's pairs, in a fixed order (for "mixed" groups)."""
+    seen = {v.should for v in vs}
+    return [x for x in _SHOULD_ORDER if x in seen] + sorted(seen - set(_SHOULD_ORDER))
+
+
 def _should_of(vs: Iterable[Verdict]) -> str:
     s = {v.should for v in vs}
     return s.pop() if len(s) == 1 else "mixed"
@@ -288,7 +298,7 @@ def summarize(
         # Diagnostic rules (should "none", e.g. reorder/shuffle) stay out of the family's numbers
         # (and so out of family-level gates); each still has its own row under ``rules``.
         vs = [v for v in all_vs if v.should != "none"] or all_vs
-        g = GroupStats(should=_should_of(vs))
+        g = GroupStats(should=_should_of(vs), shoulds=_shoulds(vs))
         _fill(g, vs, cluster, seed, n_boot, vetted_run=vetted_run)
         g.rejected = sum(n for r, n in rejected_by_rule.items() if r.split("/", 1)[0] == fam)
         by_rule: dict[str, list[Verdict]] = defaultdict(list)
@@ -305,7 +315,7 @@ def summarize(
             if has_gold:
                 by_gold[_gold_name(v.label, labels)].append(v)
         for rule in sorted(by_rule):
-            rg = GroupStats(should=_should_of(by_rule[rule]))
+            rg = GroupStats(should=_should_of(by_rule[rule]), shoulds=_shoulds(by_rule[rule]))
             _fill(rg, by_rule[rule], cluster, seed, n_boot, vetted_run=vetted_run)
             rg.rejected = int(rejected_by_rule.get(rule, 0))
             g.rules[rule] = rg

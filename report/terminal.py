@@ -172,12 +172,9 @@ def describe_interval(summary: Summary) -> str:
 
 def should_words(g: GroupStats) -> str:
     """A family's expectation as a reader needs it: its rules' expectations when they differ."""
-    if g.should != "mixed" or not g.rules:
+    if g.should != "mixed":
         return g.should
-    seen: list[str] = []
-    for r in g.rules.values():
-        if r.should != "none" and r.should not in seen:
-            seen.append(r.should)
+    seen = [x for x in getattr(g, "shoulds", None) or [] if x != "none"]
     return "/".join(seen) or g.should
 
 
@@ -576,9 +573,9 @@ def _should(summaries: Sequence[Summary], fam: str, rule: str | None = None) -> 
         if fg is None:
             continue
         if rule is None:
-            return fg.should
+            return should_words(fg)
         if rule in fg.rules:
-            return fg.rules[rule].should
+            return should_words(fg.rules[rule])
     return ""
 
 
