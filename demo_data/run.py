@@ -15,7 +15,33 @@ from pairflip.demo.models import MODEL_NAMES, load_sentences, trained
 
 def demo_files() -> list[str]:
     """The files ``run_demo`` writes into its folder (checked by the CLI before any work)."""
-    return [f"{name}.joblib" for name in MODEL_NAMES] + ["suite.jsonl"] + [f"results-{name}.jsonl" for name in MODEL_NAMES]
+    skops = [f"{name}.skops" for name in MODEL_NAMES] if has_skops() else []
+    return [f"{name}.joblib" for name in MODEL_NAMES] + skops + ["suite.jsonl"] + [f"results-{name}.jsonl" for name in MODEL_NAMES]
+
+
+def has_skops() -> bool:
+    """Is the optional ``pairflip[skops]`` extra installed (the demo then also saves .skops files)?"""
+    import importlib.util
+
+    return importlib.util.find_spec("skops") is not None
+
+
+def save_skops(models: dict[str, Any], out: Path, log: Console) -> None:
+    """Save each model with ``skops.io.dump`` too, and say which types each file asks to trust."""
+    import skops.io as sio
+
+    needs = []
+    for name, m in models.items():
+        path = out / f"{name}.skops"
+        try:
+            sio.dump(m, path)
+        except OSError as err:
+            raise PairflipError(f"{path}: cannot write the demo model ({err.strerror or err})") from None
+        extra = sio.get_untrusted_types(file=path)
+        if extra:
+            needs.append(f"{path.name} needs " + " ".join(f"--trust {t}" for t in extra))
+    log.print("saved the demo models as .skops files too (load without unpickling)"
+              + (f"; {'; '.join(needs)}" if needs else ""), markup=False, soft_wrap=True)
 
 
 def run_demo(*, out_dir: Path | None, seed: int, examples: int, console: Console, log: Console) -> list[Any]:
@@ -44,6 +70,10 @@ def run_demo(*, out_dir: Path | None, seed: int, examples: int, console: Console
             except OSError as err:
                 raise PairflipError(f"{out / f'{name}.joblib'}: cannot write the demo model ({err.strerror or err})") from None
         log.print(f"trained {len(models)} demo models on demo_data/reviews.csv in {time.perf_counter() - t0:.1f}s", markup=False)
+        if out_dir is not None and has_skops():
+            save_skops(models, out, log)
+        elif out_dir is not None:
+            log.print('skops is not installed: the models are kept as .joblib only (pip install "pairflip[skops]" adds .skops files)', markup=False)
         t1 = time.perf_counter()
         suite = build_suite(load_sentences(), seed=seed)
         suite.header["corpus"] = "demo_data/sentences.txt"

@@ -49,7 +49,8 @@ app = typer.Typer(
 DEBUG = False
 SECURITY_NOTE = (
     "A .joblib/.pkl model file is unpickled, which runs code stored in it: pairflip only loads the "
-    "file named here, so name only files you trust."
+    "file named here, so name only files you trust. A .skops file is not unpickled: types skops "
+    "does not trust by default need --trust TYPE."
 )
 
 
@@ -306,8 +307,9 @@ def build_to_file(corpus: Path, output: Path, *, families: Any, force: bool, **k
 @app.command()
 def score(
     suite: Path = typer.Argument(..., metavar="SUITE", help="A suite file made by `pairflip build`."),
-    model: str = typer.Option(..., "--model", "-m", help="Model SPEC: path/model.joblib, package.module:name, http://host:port/path, or cmd:COMMAND. " + SECURITY_NOTE),
+    model: str = typer.Option(..., "--model", "-m", help="Model SPEC: path/model.joblib, path/model.skops, onnx:DIR, package.module:name, http://host:port/path, or cmd:COMMAND. " + SECURITY_NOTE),
     output: Path = typer.Option(..., "-o", "--output", help="Where to write the results (.jsonl)."),
+    trust: List[str] = typer.Option([], "--trust", metavar="TYPE", help="A type a .skops model file may hold beyond those skops trusts by default (repeatable); the error for an untrusted file lists them."),
     labels: Optional[str] = typer.Option(None, "--labels", help="The model's labels from most negative to most positive, comma-separated."),
     margin: float = typer.Option(0.05, "--margin", help="Polarity-score change (on -1..1) tolerated by strengthen/weaken/rise/fall (default 0.05)."),
     batch_size: int = typer.Option(64, "--batch-size", help="Texts per model call."),
@@ -332,6 +334,7 @@ def score(
         results = score_to_file(
             suite, model, output, labels=labels, margin=margin, batch_size=batch_size, cache=cache,
             concurrency=concurrency, timeout=timeout, retries=retries, force=force, counts=counts, cache_key=cache_key, vetted=vetted,
+            trust=trust,
         )
         n_viol = sum(1 for v in results.verdicts if v.verdict == "violation")
         labels_only = ""
@@ -355,7 +358,7 @@ def score(
 
 
 def score_to_file(suite_path: Path, model: str, output: Path, *, force: bool, cache: Path | None, timeout: float, retries: int,
-                  counts: dict[str, int] | None = None, vetted: Path | None = None, **kw: Any) -> Any:
+                  counts: dict[str, int] | None = None, vetted: Path | None = None, trust: List[str] | tuple[str, ...] = (), **kw: Any) -> Any:
     """Score a suite file into a results file; ``counts["cached"]`` gets how many distinct texts
     the cache already held. With ``vetted`` (a decisions file) rejected pairs are left out before
     any prediction and changed expectations applied."""
@@ -375,7 +378,7 @@ def score_to_file(suite_path: Path, model: str, output: Path, *, force: bool, ca
         from pairflip.decisions import apply_decisions
 
         suite.pairs, vetted_counts = apply_decisions(suite.pairs, decisions)
-    m = load_model(model, timeout=timeout, retries=retries)
+    m = load_model(model, timeout=timeout, retries=retries, trust=trust)
     cache_obj = None
     if cache is not None:
         from pairflip.probes.cache import PredictionCache
@@ -588,6 +591,7 @@ def compare(
 def audit(
     corpus: Path = typer.Argument(..., metavar="CORPUS", help="Texts: .txt (one per line), .csv/.tsv, .jsonl, or a folder of .txt files."),
     model: str = typer.Option(..., "--model", "-m", help="Model SPEC (see `score`). " + SECURITY_NOTE),
+    trust: List[str] = typer.Option([], "--trust", metavar="TYPE", help="A type a .skops model file may hold beyond those skops trusts by default (repeatable); the error for an untrusted file lists them."),
     out_dir: Path = typer.Option(Path("pairflip-out"), "--out-dir", help="Folder for suite.jsonl and results.jsonl (default: ./pairflip-out)."),
     families: Optional[str] = _families_opt(),
     text_column: Optional[str] = typer.Option(None, "--text-column", help="CSV/TSV column holding the text (default: text)."),
@@ -672,7 +676,7 @@ def audit(
         render_build_stats(stats, suite_path, _err_console())
         results = score_to_file(
             suite_path, model, results_path, labels=labels, margin=margin, batch_size=batch_size, cache=cache,
-            concurrency=concurrency, timeout=timeout, retries=retries, force=force, vetted=vetted,
+            concurrency=concurrency, timeout=timeout, retries=retries, force=force, vetted=vetted, trust=trust,
         )
         from pairflip.report import render, summarize
 

@@ -5,6 +5,10 @@ SPEC forms (see :func:`load_model`):
 - ``path/model.joblib`` (also ``.pkl``, ``.pickle``): a fitted scikit-learn-like object with
   ``predict`` and, optionally, ``predict_proba`` and ``classes_`` (:mod:`.file_model`).
   Loading it unpickles it, which runs code stored in the file: only name files you trust.
+- ``path/model.skops``: the same kind of object saved with ``skops.io.dump``; loaded without
+  unpickling, trusting skops' default types and those named with ``--trust TYPE`` (``trust=``).
+- ``onnx:DIR``: ``DIR/model.onnx`` run with onnxruntime on CPU, ``DIR/tokenizer.json`` and the
+  labels of ``DIR/config.json`` (:mod:`.onnx_model`).
 - ``package.module:name``: ``name`` is a callable ``list[str] -> outputs``, an object with
   ``predict`` (and maybe ``predict_proba`` / ``classes_``), or a class, instantiated without
   arguments. An output is a label, or a dict with ``label``, ``probabilities`` (label -> p) and/or
@@ -47,8 +51,8 @@ from pairflip.probes.batching import (
 )
 from pairflip.records import PairflipError, Prediction
 
-SPEC_FORMS = "path/model.joblib, package.module:name, http://host:port/path or cmd:COMMAND"
-FILE_SUFFIXES = (".joblib", ".pkl", ".pickle")
+SPEC_FORMS = "path/model.joblib, path/model.skops, onnx:DIR, package.module:name, http://host:port/path or cmd:COMMAND"
+FILE_SUFFIXES = (".joblib", ".pkl", ".pickle", ".skops")
 
 
 class Model:
@@ -372,17 +376,24 @@ def _what_code_did(what: str) -> str:
     return what.removeprefix("the model ")
 
 
-def load_model(spec: str, *, timeout: float = 30.0, retries: int = 3, **options: Any) -> Model:
+def load_model(spec: str, *, timeout: float = 30.0, retries: int = 3, trust: Sequence[str] = (), **options: Any) -> Model:
     """Turn a SPEC string into a model (see the module docstring for the forms).
 
     ``timeout`` (a deadline in seconds for a batch as a whole: for HTTP, for each attempt) and
     ``retries`` apply to HTTP models; ``timeout`` also to ``cmd:`` models. Both are checked for
-    every SPEC. Other ``options`` go to the HTTP or command adapter.
+    every SPEC. ``trust`` (``--trust``) names types a ``.skops`` file may hold beyond skops'
+    defaults; it is refused for any other SPEC. Other ``options`` go to the HTTP or command adapter.
     """
     if not isinstance(spec, str) or not spec.strip():
         raise PairflipError(f"--model {spec!r}: empty; expected {SPEC_FORMS}")
     check_run_options(timeout=timeout, retries=retries)
     spec = spec.strip()
+    if trust and not spec.lower().endswith(".skops"):
+        raise PairflipError(f"--trust {trust[0]}: only a .skops model file has types to trust; --model {spec} is not one")
+    if spec.startswith("onnx:"):
+        from pairflip.probes.onnx_model import load_onnx_model
+
+        return load_onnx_model(spec)
     if spec.startswith(("http://", "https://")):
         from pairflip.probes.http_model import HttpModel
 
@@ -394,7 +405,7 @@ def load_model(spec: str, *, timeout: float = 30.0, retries: int = 3, **options:
     if spec.lower().endswith(FILE_SUFFIXES):
         from pairflip.probes.file_model import load_file_model
 
-        return load_file_model(spec)
+        return load_file_model(spec, trust=trust)
     if ":" in spec and not os.path.exists(spec):
         return import_model(spec)
     raise PairflipError(f"--model {spec!r}: not a model SPEC; expected {SPEC_FORMS}")

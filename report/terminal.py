@@ -193,6 +193,17 @@ def total_pairs(summary: Summary) -> int:
     return total
 
 
+# How each adapter's ``kind`` (in the results header's model) is named in the report's header.
+FORMAT_WORDS = {
+    "joblib": "joblib/pickle file (scikit-learn-like object; unpickling runs code)",
+    "skops": "skops file (scikit-learn-like object; types checked before loading)",
+    "onnx": "ONNX model with tokenizer.json (onnxruntime, CPU)",
+    "python": "Python object in this process",
+    "command": "command speaking JSON Lines",
+    "http": "HTTP endpoint",
+}
+
+
 def header_facts(summary: Summary) -> list[tuple[str, str]]:
     """The header as (key, value) lines; exporters use the same facts."""
     s = summary
@@ -200,6 +211,9 @@ def header_facts(summary: Summary) -> list[tuple[str, str]]:
     spec = s.model.get("spec")
     model = s.model_name + (f" ({spec})" if spec and spec != s.model_name else "")
     facts.append(("model", model))
+    kind = s.model.get("kind")
+    if isinstance(kind, str) and kind and kind != "model":
+        facts.append(("format", FORMAT_WORDS.get(kind, kind)))
     suite_bits = []
     if s.suite.get("path"):
         suite_bits.append(str(s.suite["path"]))
