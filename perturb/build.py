@@ -195,20 +195,29 @@ def sentence_spans(doc: Any) -> list[Any]:
     return out
 
 
-def _units(doc: Any, st: SourceText, unit: str, seen: set[bytes], stats: "BuildStats") -> Iterator[tuple[Any, SourceText]]:
-    """The sources of one parsed text: the text itself, or its sentences (see the module doc)."""
+def unit_items(
+    doc: Any, st: SourceText, unit: str, seen: set[bytes]
+) -> Iterator[tuple[bytes | None, str | None, Any, SourceText | None]]:
+    """The sources of one parsed text (see the module doc), as ``(key, skip, doc, source)``.
+
+    ``key`` is the digest a sentence source is de-duplicated by (None with unit "text"): a source
+    whose key is in ``seen`` is left out, and every key given is added to ``seen``. ``skip`` is
+    the reason the source makes no pairs (too long; then ``doc`` and ``source`` are None), else
+    None. The build counts ``stats.sentences`` once per key and ``stats.skipped`` per skip; the
+    Ray build (:mod:`pairflip.perturb.ray_build`) calls this in its workers and replays the keys
+    in corpus order."""
     spans = [] if unit == "text" else sentence_spans(doc)
     if len(spans) <= 1:
+        key = None
         if unit == "sentence":
             key = text_digest(st.text)
             if key in seen:
                 return
             seen.add(key)
-            stats.sentences += 1
         if word_count(doc) > MAX_WORDS:
-            stats.skipped[TOO_LONG if unit == "text" else TOO_LONG_SENTENCE] += 1
+            yield key, TOO_LONG if unit == "text" else TOO_LONG_SENTENCE, None, None
             return
-        yield doc, st
+        yield key, None, doc, st
         return
     text_id = st.id
     for i, span in enumerate(spans):
@@ -217,14 +226,57 @@ def _units(doc: Any, st: SourceText, unit: str, seen: set[bytes], stats: "BuildS
         if key in seen:
             continue
         seen.add(key)
-        stats.sentences += 1
         if word_count(span) > MAX_WORDS:
-            stats.skipped[TOO_LONG_SENTENCE] += 1
+            yield key, TOO_LONG_SENTENCE, None, None
             continue
         sdoc = _sentence_doc(doc, span)
         sdoc.user_data["pairflip.text"] = text
         where = f"{st.where}, sentence {i + 1}" if st.where else f"sentence {i + 1}"
-        yield sdoc, SentenceSource(text=text, label=st.label, where=where, text_id=text_id, index=i)
+        yield key, None, sdoc, SentenceSource(text=text, label=st.label, where=where, text_id=text_id, index=i)
+
+
+def _units(doc: Any, st: SourceText, unit: str, seen: set[bytes], stats: "BuildStats") -> Iterator[tuple[Any, SourceText]]:
+    """The sources of one parsed text that make pairs, counted in ``stats`` (:func:`unit_items`)."""
+    for key, skip, udoc, ust in unit_items(doc, st, unit, seen):
+        if key is not None:
+            stats.sentences += 1
+        if skip is not None:
+            stats.skipped[skip] += 1
+            continue
+        yield udoc, ust  # type: ignore[misc]
+
+
+def pairs_for_unit(
+    doc: Any, st: SourceText, selected: dict[str, set[str]], modules: dict[str, Any], seed: int, lexicon: Lexicon,
+    max_per_rule: int, stats: "BuildStats", recheck_nlp: Any,
+) -> list[Pair]:
+    """Every selected family's pairs of one source, in family order; made and dropped counted in ``stats``."""
+    out: list[Pair] = []
+    for fam, rules in selected.items():
+        out.extend(_pairs_for_doc(doc, st, modules[fam], rules, seed, lexicon, max_per_rule, stats, recheck_nlp))
+    return out
+
+
+class TextCounter:
+    """Counts, as pairs go out in corpus order, the texts that gave a pair and a pair with an
+    expectation, and the diagnostic pairs (a text's sources come in a row)."""
+
+    def __init__(self, stats: "BuildStats") -> None:
+        self.stats = stats
+        self.last = ["", ""]  # the texts counted last, any pair / a tested pair
+
+    def __call__(self, pairs: list[Pair]) -> list[Pair]:
+        if pairs:
+            stats = self.stats
+            text = pairs[0].extra.get("text_id") or pairs[0].source_id
+            if text != self.last[0]:
+                self.last[0] = text
+                stats.sources_with_pairs += 1
+            stats.diagnostic_pairs += sum(1 for p in pairs if p.should == "none")
+            if text != self.last[1] and any(p.should != "none" for p in pairs):
+                self.last[1] = text
+                stats.sources_with_tested_pairs += 1
+        return pairs
 
 
 def _as_sources(texts: Iterable[Any]) -> Iterator[SourceText]:
@@ -245,6 +297,23 @@ def _as_sources(texts: Iterable[Any]) -> Iterator[SourceText]:
             continue
         seen.add(key)
         yield st
+
+
+def beyond_max_length(st: SourceText, max_len: int, stats: "BuildStats") -> bool:
+    """A text longer than the pipeline's ``max_length`` is not parsed: counted and (the first
+    few) named in ``stats``."""
+    if len(st.text) <= max_len:
+        return False
+    stats.skipped["longer than the spaCy pipeline's max_length"] += 1
+    if len(stats.warnings) < 20:  # the count is in stats.skipped; keep only the first few
+        stats.warnings.append(f"{st.where}: skipped a text of {len(st.text)} characters (max {max_len})")
+    return True
+
+
+def precounted_too_long(text: str, unit: str, nlp: Any) -> bool:
+    """With unit "text", a long text whose words the tokenizer alone counts over the limit
+    (:data:`PRECOUNT_CHARS`): skipped before the parse."""
+    return unit == "text" and len(text) > PRECOUNT_CHARS and word_count(nlp.tokenizer(text)) > MAX_WORDS
 
 
 def iter_pairs(
@@ -285,12 +354,9 @@ def iter_pairs(
     def admitted() -> Iterator[tuple[str, SourceText]]:
         for st in _as_sources(texts):
             stats.sources += 1
-            if len(st.text) > max_len:
-                stats.skipped["longer than the spaCy pipeline's max_length"] += 1
-                if len(stats.warnings) < 20:  # the count is in stats.skipped; keep only the first few
-                    stats.warnings.append(f"{st.where}: skipped a text of {len(st.text)} characters (max {max_len})")
+            if beyond_max_length(st, max_len, stats):
                 continue
-            if unit == "text" and len(st.text) > PRECOUNT_CHARS and word_count(nlp.tokenizer(st.text)) > MAX_WORDS:
+            if precounted_too_long(st.text, unit, nlp):
                 stats.skipped[TOO_LONG] += 1
                 continue
             yield st.text, st
@@ -314,24 +380,9 @@ def iter_pairs(
     recheck_nlp = nlp if recheck else None
 
     def run_doc(doc: Any, st: SourceText, into: BuildStats) -> list[Pair]:
-        out: list[Pair] = []
-        for fam, rules in selected.items():
-            out.extend(_pairs_for_doc(doc, st, modules[fam], rules, seed, lexicon, max_per_rule, into, recheck_nlp))
-        return out
+        return pairs_for_unit(doc, st, selected, modules, seed, lexicon, max_per_rule, into, recheck_nlp)
 
-    last_text = ["", ""]  # the texts counted last, any pair / a tested pair (a text's sources come in a row)
-
-    def counted(pairs: list[Pair]) -> list[Pair]:
-        if pairs:
-            text = pairs[0].extra.get("text_id") or pairs[0].source_id
-            if text != last_text[0]:
-                last_text[0] = text
-                stats.sources_with_pairs += 1
-            stats.diagnostic_pairs += sum(1 for p in pairs if p.should == "none")
-            if text != last_text[1] and any(p.should != "none" for p in pairs):
-                last_text[1] = text
-                stats.sources_with_tested_pairs += 1
-        return pairs
+    counted = TextCounter(stats)
 
     from pairflip.perturb import overlap as _overlap
 
