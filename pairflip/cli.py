@@ -224,6 +224,25 @@ def _families_opt() -> Any:
     return typer.Option(None, "--families", "-f", help="Comma-separated families or family/rule names (default: all).")
 
 
+def _engine_opt() -> Any:
+    return typer.Option("local", "--engine", help='Where the work runs: local (this process) or ray (Ray actors; needs pip install "pairflip[ray]"). Same output either way.')
+
+
+def _address_opt() -> Any:
+    return typer.Option(None, "--address", help="With --engine ray: join this Ray cluster (HOST:PORT, ray://HOST:PORT, or auto); without it a local Ray instance is started and stopped.")
+
+
+def _check_engine(kw: dict[str, Any]) -> str:
+    """``--engine`` and its options, checked before any work (Ray imported, not started)."""
+    from pairflip.engines import check_engine, import_ray
+
+    engine = check_engine(kw.get("engine", "local"), address=kw.get("address"), replicas=kw.get("replicas"),
+                          shards=kw.get("shards"))
+    if engine == "ray":
+        import_ray()
+    return engine
+
+
 @app.command()
 def build(
     corpus: Path = typer.Argument(..., metavar="CORPUS", help="Texts: .txt (one per line), .csv/.tsv, or .jsonl."),
@@ -243,6 +262,10 @@ def build(
     overlap: bool = typer.Option(True, "--overlap/--no-overlap", help="On big inputs, run the rules in a second process while parsing (same suite, less time)."),
     unit: str = typer.Option("sentence", "--unit", help="What one source is: 'sentence' (each sentence of a text, default) or 'text' (the whole text)."),
     force: bool = typer.Option(False, "--force", help="Overwrite the output file if it exists."),
+    engine: str = _engine_opt(),
+    address: Optional[str] = _address_opt(),
+    replicas: Optional[int] = typer.Option(None, "--replicas", help="With --engine ray: build actors, each loading spaCy once (default: one per CPU of the Ray instance)."),
+    shards: Optional[int] = typer.Option(None, "--shards", help="With --engine ray: cut the corpus into this many shards of consecutive texts (default: about 4 per actor, 16 to 1,000 texts each)."),
 ) -> None:
     """Make a suite of minimal pairs from your own texts."""
     with _guard():
@@ -250,7 +273,7 @@ def build(
             corpus, output, families=families, text_column=text_column, label_column=label_column,
             text_field=text_field, label_field=label_field, encoding=encoding, seed=seed, workers=workers,
             spacy_model=spacy_model, lexicon=lexicon, max_per_rule=max_per_rule, recheck=recheck, force=force,
-            overlap=overlap, unit=unit,
+            overlap=overlap, unit=unit, engine=engine, address=address, replicas=replicas, shards=shards,
         )
         from pairflip.report.build_summary import render_build_stats
 
@@ -265,6 +288,9 @@ def build_to_file(corpus: Path, output: Path, *, families: Any, force: bool, **k
 
     _check_output(output, [corpus], force, option=kw.get("output_option", "-o"), retry=kw.get("retry", ""))
     _check_counts(workers=kw["workers"], max_per_rule=kw["max_per_rule"])
+    engine = _check_engine(kw)
+    if engine == "ray" and kw["workers"] > 1:
+        raise PairflipError(f"--workers {kw['workers']}: with --engine ray the parsers are the Ray actors; use --replicas")
     from pairflip.perturb.build import DEFAULT_UNIT, check_unit, resolve_rules
 
     unit = check_unit(kw.get("unit", DEFAULT_UNIT))
@@ -291,12 +317,22 @@ def build_to_file(corpus: Path, output: Path, *, families: Any, force: bool, **k
     header = suite_header(families, kw["seed"], nlp, lex, kw["max_per_rule"], kw["recheck"], unit)
     header["corpus"] = str(corpus)
     with _progress("building pairs") as bar, atomic_writer(output, force=True) as fh:
-        pairs = iter_pairs(
-            all_texts(), families=families, seed=kw["seed"], nlp=nlp, lexicon=lex, workers=kw["workers"],
-            max_per_rule=kw["max_per_rule"], recheck=kw["recheck"], stats=stats,
-            on_source=(lambda n: bar.update(n, total)) if bar else None, overlap=kw.get("overlap", True),
-            unit=unit,
-        )
+        if engine == "ray":
+            from pairflip.perturb.ray_build import iter_pairs_ray
+
+            pairs = iter_pairs_ray(
+                all_texts(), families=families, seed=kw["seed"], nlp=nlp, spacy_model=kw["spacy_model"], lexicon=lex,
+                max_per_rule=kw["max_per_rule"], recheck=kw["recheck"], stats=stats,
+                on_source=(lambda n: bar.update(n, total)) if bar else None, unit=unit, replicas=kw.get("replicas"),
+                shards=kw.get("shards"), total=total, address=kw.get("address"),
+            )
+        else:
+            pairs = iter_pairs(
+                all_texts(), families=families, seed=kw["seed"], nlp=nlp, lexicon=lex, workers=kw["workers"],
+                max_per_rule=kw["max_per_rule"], recheck=kw["recheck"], stats=stats,
+                on_source=(lambda n: bar.update(n, total)) if bar else None, overlap=kw.get("overlap", True),
+                unit=unit,
+            )
         write_suite_stream(header, pairs, fh)
     return stats
 
@@ -321,6 +357,9 @@ def score(
     force: bool = typer.Option(False, "--force", help="Overwrite the output file if it exists."),
     vetted: Optional[Path] = typer.Option(None, "--vetted", help="A decisions file from `pairflip vet`: rejected pairs are not scored, changed expectations applied."),
     trained_on: Optional[Path] = typer.Option(None, "--trained-on", metavar="FILE", help="The model's training data (.csv/.tsv/.jsonl/.txt, such as the output of `pairflip augment`): warn when sources of the results are in it (by source id or text)."),
+    engine: str = _engine_opt(),
+    address: Optional[str] = _address_opt(),
+    replicas: Optional[int] = typer.Option(None, "--replicas", help="With --engine ray: model actors, each loading the model once and running one batch at a time (default: one per CPU of the Ray instance)."),
 ) -> None:
     """Run a model on both sides of every pair and judge the expectations."""
     with _guard():
@@ -336,7 +375,7 @@ def score(
         results = score_to_file(
             suite, model, output, labels=labels, margin=margin, batch_size=batch_size, cache=cache,
             concurrency=concurrency, timeout=timeout, retries=retries, force=force, counts=counts, cache_key=cache_key, vetted=vetted,
-            trust=trust,
+            trust=trust, engine=engine, address=address, replicas=replicas,
         )
         n_viol = sum(1 for v in results.verdicts if v.verdict == "violation")
         labels_only = ""
@@ -368,6 +407,11 @@ def score_to_file(suite_path: Path, model: str, output: Path, *, force: bool, ca
     from pairflip.files import read_suite, write_results
     from pairflip.probes import load_model, score as _score
 
+    engine_kw = {k: kw.pop(k) for k in ("engine", "address", "replicas") if k in kw}
+    engine = _check_engine(engine_kw)
+    if engine == "ray" and kw.get("concurrency", 1) != 1:
+        raise PairflipError(f"--concurrency {kw['concurrency']}: with --engine ray each actor runs one batch at a time; "
+                            f"set the batches in flight with --replicas")
     _check_output(output, [suite_path] + ([cache] if cache else []), force)
     if cache is not None and _same_file(cache, suite_path):
         raise PairflipError(f"--cache {cache}: is the suite file itself; expected a separate SQLite file for the cache")
@@ -381,7 +425,14 @@ def score_to_file(suite_path: Path, model: str, output: Path, *, force: bool, ca
         from pairflip.decisions import apply_decisions
 
         suite.pairs, vetted_counts = apply_decisions(suite.pairs, decisions)
-    m = load_model(model, timeout=timeout, retries=retries, trust=trust)
+    if engine == "ray":
+        from pairflip.probes.ray_score import ray_model
+
+        m = ray_model(model, replicas=engine_kw.get("replicas"), address=engine_kw.get("address"), timeout=timeout,
+                      retries=retries, trust=trust)
+        kw["concurrency"] = m.replicas  # one batch per actor in flight
+    else:
+        m = load_model(model, timeout=timeout, retries=retries, trust=trust)
     cache_obj = None
     if cache is not None:
         from pairflip.probes.cache import PredictionCache
