@@ -297,8 +297,13 @@ def _article_as_a(ws: list[str]) -> list[str]:
     return ["a" if w == "an" else w for w in ws]
 
 
+# Negative auxiliaries written without the apostrophe in informal text ("i dont like it").
+_BARE_NT = frozenset("dont doesnt didnt isnt arent wasnt werent cant wont couldnt shouldnt wouldnt "
+                     "hasnt havent hadnt aint mustnt neednt".split())
+
+
 def _count_negations(ws: "list[str] | tuple[str, ...]") -> int:
-    return sum(1 for w in ws if w in NEGATORS or w.replace("’", "'").endswith("n't"))
+    return sum(1 for w in ws if w in NEGATORS or w in _BARE_NT or w.replace("’", "'").endswith("n't"))
 
 
 def _negation_change(cand: Candidate) -> int | None:

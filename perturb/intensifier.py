@@ -135,8 +135,14 @@ SOCIAL_VERBS = frozenset({"see", "hear", "know", "meet", "have", "be", "get", "g
 FUNCTION_VERBS = frozenset(
     "work fit run perform function last hold handle cook heat light charge fold pack ship arrive install "
     "connect play focus wear breathe clean cut close zip open seal drain boil burn print load respond "
-    "start flap rattle squeak leak pitch operate glide slide grip pour shoot sound feel look go".split()
+    "start flap rattle squeak leak pitch operate glide slide grip pour shoot sound feel look go "
+    # the verbs of a service: "support answered quickly", "they treated us kindly"
+    "answer reply treat deal resolve sort explain deliver dispatch refund communicate behave".split()
 )
+# Stance verbs that take an inserted amplifier before them ("I like it" -> "I really like it",
+# "I recommend it" -> "I highly recommend it"); the rest are graded by removal only.
+AMPLIFIED_VERBS = {"love": "really", "like": "really", "enjoy": "really", "hate": "really",
+                   "dislike": "really", "appreciate": "really", "recommend": "highly"}
 HENDIADYS = frozenset({"nice", "good", "lovely", "fine"})
 EXCLAMATIVE = frozenset({"what", "such", "quite", "rather"})
 
@@ -493,6 +499,9 @@ def _edits_for(doc: "Doc", tok: "Token", entry: "OpinionWord", role: str, degree
     if role == "verb":
         if mod is not None and mod[1] in ("amplifier", "extreme-amplifier"):
             yield _candidate(doc, tok, mod[0], [], "intensifier/remove", dict(base_meta, op="remove"))
+        elif mod is None and _verb_takes_amplifier(tok):
+            amp = AMPLIFIED_VERBS[lemma(tok).lower()]
+            yield _candidate(doc, tok, tok.i, [amp], "intensifier/amplify", dict(base_meta, op="insert", word=amp))
         return
     extreme = entry.grade == "extreme"
     nxt = tokens(doc)[tok.i + 1] if tok.i + 1 < len(doc) else None
@@ -532,6 +541,23 @@ def _edits_for(doc: "Doc", tok: "Token", entry: "OpinionWord", role: str, degree
         yield _candidate(
             doc, tok, start, [AMPLIFIER], "intensifier/amplify", dict(base_meta, op="swap", removed=old, word=AMPLIFIER)
         )
+
+
+def _verb_takes_amplifier(tok: "Token") -> bool:
+    """A plain stance verb with its own subject and object, no other adverb, no clause after it:
+    "I like the new zip", "We loved it", "I've enjoyed every trip" (never "I like to camp", "I'd
+    like", "I like that it folds": a wish or a frame, not the graded opinion)."""
+    if lemma(tok).lower() not in AMPLIFIED_VERBS or tok.tag_ not in ("VBP", "VBD", "VBZ", "VBN", "VB"):
+        return False
+    kids = list(tok.children)
+    if not any(c.dep_ in ("nsubj",) for c in kids) or not any(c.dep_ == "dobj" for c in kids):
+        return False
+    if any(c.dep_ in ("xcomp", "ccomp", "advmod", "npadvmod", "prt", "neg", "advcl") for c in kids):
+        return False
+    if tok.tag_ in ("VB", "VBN") and not any(c.dep_ == "aux" for c in kids):
+        return False
+    prev = tok.doc[tok.i - 1] if tok.i > 0 else None
+    return prev is not None and (prev.dep_ in ("nsubj", "aux") or prev.pos_ in ("PRON", "NOUN", "PROPN", "AUX"))
 
 
 def _softener(entry: "OpinionWord", role: str) -> str:

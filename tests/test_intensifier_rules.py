@@ -138,7 +138,23 @@ CASES = [
     ("Nice and light!", AMP, set()),  # "nice and light" = pleasantly light
     ("The price was fair.", SOFT, {"The price was somewhat fair."}),  # not "fairly fair"
     ("I’m very happy with it.", REM, {"I’m happy with it."}),
-    ("I love this tent. The poles are light.", AMP, {"I love this tent. The poles are very light."}),
+    ("I love this tent. The poles are light.", AMP, {"I love this tent. The poles are very light.",
+                                                     "I really love this tent. The poles are light."}),
+    # stance verbs take an amplifier before them; "highly" is the one "recommend" takes
+    # (a collocation of English usage, common practice, from memory)
+    ("I like the new zip.", AMP, {"I really like the new zip."}),
+    ("We loved the lodge.", AMP, {"We really loved the lodge."}),
+    ("I have enjoyed every trip with it.", AMP, {"I have really enjoyed every trip with it."}),
+    ("I recommend this stove.", AMP, {"I highly recommend this stove."}),
+    ("I hate the new buckle.", AMP, {"I really hate the new buckle."}),
+    ("I like to camp in spring.", AMP, set()),  # a preference for an activity, not the graded opinion
+    ("I'd like a refund.", AMP, set()),  # a wish
+    ("I like that it folds flat.", AMP, set()),  # the opinion is in the clause after the verb
+    ("I also like the colour.", AMP, set()),  # another adverb already on the verb
+    ("Love this tent.", AMP, set()),  # no subject: an imperative-like fragment, left alone
+    # manner adverbs of a service's verbs
+    ("Support answered quickly.", AMP, {"Support answered very quickly."}),
+    ("The staff treated us kindly.", AMP, {"The staff treated us very kindly."}),
     # only opinion words about the product: weather and ground are left alone
     ("The tips skate on wet granite.", AMP, set()),
     ("The tent is green.", AMP, set()),

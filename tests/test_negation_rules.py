@@ -39,11 +39,47 @@ def run(nlp, lex, text: str):
 NO = None  # "no variant"
 
 CASES = [
+    # ---- removal where the opinion is the negated event itself: a product or service not doing
+    # what it is for (flip = reversed or gone: without the negation no complaint is left)
+    ("The map won't load on my phone.", "negation/removal", "The map will load on my phone."),
+    ("We won't shop with them again.", "negation/removal", "We will shop with them again."),
+    ("The store never answered my emails.", "negation/removal", "The store answered my emails."),
+    ("I haven't received my refund.", "negation/removal", "I have received my refund."),
+    ("The order hasn't arrived yet.", "negation/removal", "The order has arrived."),  # "yet" goes with the negation
+    ("The stove doesn't light in the wind.", "negation/removal", "The stove lights in the wind."),
+    ("Support never replied.", "negation/removal", "Support replied."),
+    ("I didn't get a confirmation email.", "negation/removal", "I got a confirmation email."),
+    ("The app won't let me log in.", "negation/removal", "The app will let me log in."),
+    ("The headlamp won't turn on.", "negation/removal", "The headlamp will turn on."),
+    ("My card wasn't accepted.", "negation/removal", "My card was accepted."),
+    ("The parcel didn't arrive until Friday.", NO, NO),  # "*arrived until Friday": the time frame needs the negation
+    ("I don't know what size to get.", NO, NO),  # not an event of the product: no opinion
+    ("I haven't tried it yet.", NO, NO),  # not an event of the product: no opinion
+    ("We didn't go camping this year.", NO, NO),  # a plain fact about the writer
+    ("I don't usually write reviews.", NO, NO),  # a plain fact about the writer
+    ("I didn't get a chance to use it.", NO, NO),  # "get" counts only with a refund, a reply, an order ...
+    ("I don't work weekends.", NO, NO),  # a person's job, not a product that works
+    # ---- informal negators without the apostrophe: removal keeps the text's own style
+    ("i dont like the new zip.", "negation/removal", "i like the new zip."),
+    ("the stove doesnt work in the cold.", "negation/removal", "the stove works in the cold."),
+    ("the tent isnt waterproof.", "negation/removal", "the tent is waterproof."),
+    # ---- frequency words over praise: "isn't always helpful" is no longer praise; over a complaint
+    # the complaint stands ("doesn't constantly crash" still crashes)
+    ("The staff are always helpful.", "negation/copula", "The staff aren't always helpful."),
+    ("The app constantly crashes.", NO, NO),
+    # ---- manner adverbs, benefit verbs, an adjective tagged as an adverb
+    ("The staff treated us kindly.", "negation/do-support", "The staff didn't treat us kindly."),
+    ("This filter will save you money.", "negation/modal", "This filter won't save you money."),
+    ("The delivery was late again.", "negation/copula", "The delivery wasn't late again."),
+    ("The straps dig into my shoulders.", "negation/do-support", "The straps don't dig into my shoulders."),
+    # ---- extreme words under an inserted negation: no longer the opinion (judge brief v2)
+    ("The headlamp works perfectly.", "negation/do-support", "The headlamp doesn't work perfectly."),
+    ("I hate the tarp I hate the tarp", NO, NO),  # a run-on read as a relative clause with its own opinion verb
     # ---- negation/copula: present, past, persons, numbers, both styles
     ("The tent is comfortable.", "negation/copula", "The tent isn't comfortable."),
     ("The tent is comfortable and I don't camp often.", "negation/copula", "The tent isn't comfortable and I don't camp often."),
     ("The straps are sturdy.", "negation/copula", "The straps aren't sturdy."),
-    ("The stove was excellent.", NO, NO),  # extreme word: 'wasn't excellent' is a hedge
+    ("The stove was excellent.", "negation/copula", "The stove wasn't excellent."),  # no longer praise: flip is 'reversed or gone' (judge brief v2)
     ("The poles were flimsy.", "negation/copula", "The poles weren't flimsy."),
     ("I am happy with it.", "negation/copula", "I am not happy with it."),
     ("I'm happy with it.", "negation/copula", "I'm not happy with it."),
@@ -59,7 +95,7 @@ CASES = [
     ("The tent is definitely worth the money.", "negation/copula", "The tent is definitely not worth the money."),
     ("It's really great.", "negation/copula", "It's not really great."),
     ("I think it's great.", "negation/copula", "I think it's not great."),
-    ("This is the best tent I've ever owned.", NO, NO),  # superlative: 'isn't the best' is a hedge
+    ("This is the best tent I've ever owned.", "negation/copula", "This isn't the best tent I've ever owned."),  # flip is 'reversed or gone' (judge brief v2)
     ("The jacket is being difficult.", "negation/copula", "The jacket isn't being difficult."),
     ("It's great but they're slow to reply.", NO, NO),  # contrast
     # ---- negation/modal: will, can, would, should, could, must, have/has/had (perfect)
@@ -81,8 +117,8 @@ CASES = [
     ("The tent leaks, the poles bend and the zipper sticks.", NO, NO),  # parser leaves "leaks" unattached
     ("The instructions could be clearer.", "negation/modal", "The instructions couldn't be clearer."),
     ("It's not the sturdiest tent, but it's cheap.", NO, NO),  # contrast
-    ("It's been working flawlessly.", NO, NO),  # extreme adverb: the negation gives a hedge
-    ("She said the tent was excellent.", NO, NO),  # extreme word
+    ("It's been working flawlessly.", "negation/modal", "It hasn't been working flawlessly."),  # flip is 'reversed or gone' (judge brief v2)
+    ("She said the tent was excellent.", "negation/copula", "She said the tent wasn't excellent."),  # the reported clause carries the opinion
     ("The seat is not uncomfortable.", "negation/removal", "The seat is uncomfortable."),
     ("I'm really impressed with how warm this bag is.", "negation/copula", "I'm not really impressed with how warm this bag is."),
     ("The chair is wobbly on any ground that isn't flat.", "negation/copula", "The chair isn't wobbly on any ground that isn't flat."),
@@ -92,7 +128,7 @@ CASES = [
     ("The lantern has been reliable.", "negation/modal", "The lantern hasn't been reliable."),
     ("It's been great.", "negation/modal", "It hasn't been great."),
     ("I have loved every minute.", NO, NO),  # "every": quantifier scope
-    ("They have worked perfectly for a year.", NO, NO),  # extreme adverb: the negation gives a hedge
+    ("They have worked perfectly for a year.", "negation/modal", "They haven't worked perfectly for a year."),  # flip is 'reversed or gone' (judge brief v2)
     ("I've enjoyed this jacket.", "negation/modal", "I haven't enjoyed this jacket."),
     ("The stove had failed twice.", "negation/modal", None),  # "hadn't failed twice" negates "twice", not the failing
     # round-2 blind review: items that need "any"/"either" after a new negation are skipped
@@ -116,7 +152,7 @@ CASES = [
     ("They broke the first week.", "negation/do-support", "They didn't break the first week."),
     ("The fly tore on the second night.", "negation/do-support", "The fly didn't tear on the second night."),
     ("The hip belt fit snugly.", "negation/do-support", "The hip belt didn't fit snugly."),
-    ("The boots fit perfectly.", NO, NO),  # extreme adverb: the negation gives a hedge
+    ("The boots fit perfectly.", "negation/do-support", "The boots don't fit perfectly."),  # flip is 'reversed or gone' (judge brief v2)
     ("It works great.", "negation/do-support", "It doesn't work great."),
     ("I ordered the lamp and it flickers.", "negation/do-support", "I ordered the lamp and it doesn't flicker."),
     ("We went there and loved it.", "negation/do-support", "We went there and didn't love it."),
@@ -126,10 +162,10 @@ CASES = [
     ("The seat sags after a few hours.", "negation/do-support", "The seat doesn't sag after a few hours."),
     ("The jacket kept me dry.", NO, NO),  # "dry" is no opinion word
     ("The batteries died overnight.", "negation/do-support", "The batteries didn't die overnight."),
-    ("I hate the zipper.", "negation/do-support", None),  # "don't hate" reads as neutral, not the opposite
+    ("I hate the zipper.", "negation/do-support", "I don't hate the zipper."),  # neutral: no longer the complaint (judge brief v2)
     ("I love the zipper.", "negation/do-support", "I don't love the zipper."),
     ("I LOVE THIS TENT.", NO, NO),  # emphatic capitals: 'DON'T LOVE' reads as 'not thrilled'
-    ("This griddle makes the best pancakes.", NO, NO),  # superlative
+    ("This griddle makes the best pancakes.", "negation/do-support", "This griddle doesn't make the best pancakes."),  # flip is 'reversed or gone' (judge brief v2)
     ("I do like the color.", "negation/do-support", "I don't like the color."),
     # ---- negation/removal
     ("The tent isn't comfortable.", "negation/removal", "The tent is comfortable."),
@@ -174,7 +210,7 @@ CASES = [
     ("Excellent stove!", NO, NO),  # extreme word
     ("Poor quality.", "negation/fragment", None),  # "not poor quality" is a hedge, not praise
     ("Great value for the price.", "negation/fragment", "Not great value for the price."),
-    ("Best tent out there.", NO, NO),  # superlative
+    ("Best tent out there.", "negation/fragment", "Not the best tent out there."),  # flip is 'reversed or gone' (judge brief v2)
     ("A great buy.", "negation/fragment", "Not a great buy."),
     ("Flimsy poles.", "negation/fragment", None),
     ("Very comfortable.", "negation/fragment", "Not very comfortable."),
@@ -200,7 +236,7 @@ CASES = [
     ("I love it too.", NO, NO),
     ("The stove is pretty good.", NO, NO),
     ("It is absolutely perfect.", NO, NO),
-    ("It always works.", NO, NO),
+    ("It always works.", "negation/do-support", "It doesn't always work."),  # no longer praise: flip is reversed or gone (judge brief v2)
     ("The pan is heavy but durable.", NO, NO),
     ("The tent was delivered on Monday.", NO, NO),  # no opinion word
     ("The lantern doesn't flicker like my cheap one did.", NO, NO),
@@ -242,7 +278,7 @@ CASES = [
     ("1) the lid leaks and the pot is heavy.", NO, NO),  # numbered list
     ("The stove is reliable #camping", NO, NO),  # hashtag
     ("The stove is reliable and the lid was good too.", NO, NO),  # additive "too"
-    ("I hate the tarp I hate the tarp I hate the tarp I hate the tarp", NO, NO),  # strong verb, and a run-on
+    ("I hate the tarp I hate the tarp I hate the tarp I hate the tarp", NO, NO),  # a run-on parsed as relative clauses: one negation would not reach the rest
     ("I like this lid I like this lid I like this lid", NO, NO),  # an unpunctuated run-on: skipped
     ("this product sucks, the customer service from apex sucks.", NO, NO),  # comma splice misparsed
     ("He loved the stove so much I gave it to him.", NO, NO),  # result clause "so much (that)"
@@ -251,7 +287,7 @@ CASES = [
     ("I would love to try it.", NO, NO),  # a wish
     ("It's annoying as hell.", NO, NO),  # emphatic "as hell"
     ("Muahaha, the stove works.", NO, NO),  # laughter interjection
-    ("The lid didn't work, and the kids were devastated.", NO, NO),  # the second clause keeps its unseen opinion
+    ("The lid didn't work, and the kids were devastated.", "negation/removal", "The lid worked, and the kids weren't devastated."),  # both clauses toggled
     ("Or save time and just buy it, you won't regret it.", NO, NO),  # imperative
     ("Hopefully the new one will work fine.", NO, NO),  # a wish
     ("The stove is soo good.", NO, NO),  # elongated, emphatic
