@@ -785,6 +785,7 @@ def demo(
     seed: int = typer.Option(0, "--seed"),
     examples: int = typer.Option(2, "--examples"),
     force: bool = typer.Option(False, "--force", help="Overwrite the demo's files in --out-dir."),
+    loop: bool = typer.Option(False, "--loop", help="Close the loop: augment half of the labelled reviews (split by source), retrain the three models with the new rows, and compare before/after on a suite and the labels of the held-out half."),
 ) -> None:
     """The whole job on the bundled outdoor-gear reviews: train three models, build, score, show."""
     with _guard():
@@ -792,10 +793,19 @@ def demo(
 
         if examples < 0:
             raise PairflipError(f"--examples {examples}: expected 0 or more examples per family")
+        if loop:
+            from pairflip.demo.loop import loop_files, run_loop
+
+            files = loop_files()
+        else:
+            files = demo_files()
         if out_dir is not None:
             _make_out_dir(out_dir)
-            for name in demo_files():
+            for name in files:
                 _check_output(out_dir / name, [], force, option="--out-dir: demo file", retry=" or choose another --out-dir")
+        if loop:
+            run_loop(out_dir=out_dir, seed=seed, examples=examples, console=_out_console(), log=_err_console())
+            return
         run_demo(out_dir=out_dir, seed=seed, examples=examples, console=_out_console(), log=_err_console())
 
 

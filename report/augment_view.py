@@ -32,6 +32,9 @@ def render_augment(stats: Any, shoulds: dict[str, str], output: Path | str, cons
     if excluded_from:
         line += (f"; left out {stats.excluded_texts} text{'s' if stats.excluded_texts != 1 else ''} whose source is in "
                  + ", ".join(excluded_from))
+    rejected = sum(why.get("rejected when vetted", 0) for why in stats.skipped.values())
+    if rejected:
+        line += f"; {rejected} pair{'s' if rejected != 1 else ''} rejected when vetted gave no row"
     console.print(line, markup=False, highlight=False, soft_wrap=True)
     skipped_rules = sorted(r for r, why in stats.skipped.items() if any("rise/fall" in k for k in why))
     if skipped_rules:
