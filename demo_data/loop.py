@@ -158,6 +158,9 @@ def run_loop(*, seed: int, console: Console, log: Console, examples: int = 0, ou
     render(summaries, console=console, examples=examples)
     console.print()
     console.print(loop_table(outcomes))
+    console.print()
+    console.print("copula and modal negations violated, by the model's label for the source, before -> after",
+                  markup=False, soft_wrap=True)
     console.print(direction_table(outcomes))
     console.print(
         "accuracy: plain accuracy on the held-out reviews' labels (negative, neutral, positive); violation rates "
@@ -191,8 +194,7 @@ def negation_by_source(results: Any, scale: Any) -> dict[str, tuple[int, int]]:
 def direction_table(outcomes: dict[str, ModelOutcome]) -> Table:
     """Copula and modal negations by the source's polarity: where a bag of single words can learn
     one direction only."""
-    t = Table(title="negation/copula and negation/modal violations by the source's predicted polarity, before -> after",
-              show_edge=False, pad_edge=False, title_justify="left")
+    t = Table(show_edge=False, pad_edge=False)
     t.add_column("model")
     t.add_column("praise negated", justify="right")
     t.add_column("complaint negated", justify="right")
@@ -210,19 +212,20 @@ def _pts(before: float, after: float) -> str:
 
 
 def loop_table(outcomes: dict[str, ModelOutcome]) -> Table:
-    """Per model: held-out accuracy and each family's violation rate, before and after."""
-    t = Table(title="before -> after augmenting (points)", show_edge=False, pad_edge=False, title_justify="left")
-    t.add_column("model")
-    t.add_column("accuracy %", justify="right")
-    fams = [f for f in next(iter(outcomes.values())).violation] if outcomes else []
+    """Per model: held-out accuracy and each family's violation rate, before, after, change."""
+    t = Table(title="held-out accuracy and violation rates (%), before and after augmenting", box=None,
+              pad_edge=False, padding=(0, 1), collapse_padding=True, title_justify="left", header_style="bold")
+    t.add_column("model", no_wrap=True, min_width=len("deep-bow" + AFTER))
+    t.add_column("accuracy", justify="right", no_wrap=True)
+    fams = sorted(next(iter(outcomes.values())).violation, key=lambda f: f != "negation") if outcomes else []
     for f in fams:
-        t.add_column(f"{f} viol %", justify="right")
-    for o in outcomes.values():
-        cells = [f"{o.accuracy_before * 100:.1f} -> {o.accuracy_after * 100:.1f} ({_pts(o.accuracy_before, o.accuracy_after)})"]
-        for f in fams:
-            b, a = o.violation.get(f, (float("nan"), float("nan")))
-            cells.append(f"{b * 100:.1f} -> {a * 100:.1f} ({_pts(b, a)})")
-        t.add_row(o.name, *cells)
+        t.add_column(f, justify="right", no_wrap=True)
+    for i, o in enumerate(outcomes.values()):
+        rates = [o.violation.get(f, (float("nan"), float("nan"))) for f in fams]
+        t.add_row(o.name, f"{o.accuracy_before * 100:.1f}", *(f"{b * 100:.1f}" for b, _ in rates))
+        t.add_row(o.name + AFTER, f"{o.accuracy_after * 100:.1f}", *(f"{a * 100:.1f}" for _, a in rates))
+        t.add_row("  change", _pts(o.accuracy_before, o.accuracy_after), *(_pts(b, a) for b, a in rates),
+                  style="dim", end_section=i < len(outcomes) - 1)
     return t
 
 
