@@ -6,7 +6,7 @@ reader: positive / negative / mixed / none; see benchmarks/coverage/README.md). 
 one source, as ``build --unit sentence`` makes it. "Clear opinion" is a mark of positive, negative
 or mixed.
 
-    python benchmarks/coverage_report.py [--lexicon FILE ...] [--json OUT]
+    python benchmarks/coverage_report.py [--sentences FILE] [--lexicon FILE ...] [--json OUT]
 """
 
 from __future__ import annotations
@@ -24,11 +24,13 @@ def main() -> None:
     ap = argparse.ArgumentParser()
     ap.add_argument("--lexicon", action="append", default=[])
     ap.add_argument("--json", type=Path)
+    ap.add_argument("--sentences", type=Path, default=SENTENCES,
+                    help="a *_sentences.jsonl file (default: the larder corpus; also kestrel_sentences.jsonl)")
     args = ap.parse_args()
 
     import pairflip
 
-    rows = [json.loads(x) for x in SENTENCES.read_text(encoding="utf-8").splitlines()]
+    rows = [json.loads(x) for x in args.sentences.read_text(encoding="utf-8").splitlines()]
     opinionated = {r["sentence"] for r in rows if r["opinion"] != "none"}
     texts = list(dict.fromkeys(r["sentence"] for r in rows))
     suite = pairflip.build_suite(texts, seed=0, lexicon_files=args.lexicon)
