@@ -229,7 +229,7 @@ def _engine_opt() -> Any:
 
 
 def _address_opt() -> Any:
-    return typer.Option(None, "--address", help="With --engine ray: join this Ray cluster (HOST:PORT, ray://HOST:PORT, or auto); without it a local Ray instance is started and stopped.")
+    return typer.Option(None, "--address", help="With --engine ray: join this Ray cluster (HOST:PORT of its head node, or auto for the one Ray finds); without it a local Ray instance is started and stopped.")
 
 
 def _check_engine(kw: dict[str, Any]) -> str:
@@ -363,6 +363,8 @@ def score(
 ) -> None:
     """Run a model on both sides of every pair and judge the expectations."""
     with _guard():
+        if trained_on is not None and _same_file(output, trained_on):
+            raise PairflipError(f"-o {output}: the output file is also an input (--trained-on {trained_on}); choose another output path")
         training = _trained_on(trained_on)  # a bad training file fails before the work
         from pairflip.probes.batching import check_run_options
         from pairflip.probes.scoring import check_cache_key
@@ -491,7 +493,7 @@ def show(
         if examples < 0:
             raise PairflipError(f"--examples {examples}: expected 0 or more examples per family")
         _check_outputs([("--json", json_out), ("--junit", junit), ("--markdown", markdown), ("--html", html)],
-                       list(results), force)
+                       list(results) + ([trained_on] if trained_on is not None else []), force)
         if limit:
             from pairflip.report.gate import parse_limit
 

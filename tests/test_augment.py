@@ -421,3 +421,17 @@ def test_demo_loop_command_prints_before_and_after(tmp_path):
     assert rows and set(rows[0]) == {"text", "label", "source_id", "rule"}
     again = run_cli(["demo", "--loop", "--out-dir", str(tmp_path)])
     assert again.code == 2 and "--force" in again.stderr
+
+
+def test_trained_on_file_is_an_input_never_an_output(tmp_path):
+    assert augment(tmp_path).code == 0
+    extra = tmp_path / "extra.csv"
+    before = extra.read_bytes()
+    assert run_cli(["build", str(tmp_path / "reviews.csv"), "-o", str(tmp_path / "suite.jsonl")]).code == 0
+    res = run_cli(["score", str(tmp_path / "suite.jsonl"), "--model", "pairflip.demo.models:bigram",
+                   "-o", str(extra), "--force", "--trained-on", str(extra)])
+    assert res.code == 2 and "also an input" in res.stderr
+    bad = run_cli(["score", str(tmp_path / "suite.jsonl"), "--model", "pairflip.demo.models:bigram",
+                   "-o", str(tmp_path / "r.jsonl"), "--trained-on", str(tmp_path / "missing.csv")])
+    assert bad.code == 2 and "--trained-on" in bad.stderr and not (tmp_path / "r.jsonl").exists()
+    assert extra.read_bytes() == before
