@@ -817,6 +817,8 @@ def removal(cl: Clause) -> list[TokenEdit] | str:
     if nxt is not None and g.norm(nxt.text) in _NOT_FOLLOWERS:
         return f"'{neg.text} {nxt.text}' is an idiom"
     n = _neg_norm(neg)
+    if cl.event and any(g.aux_word(a) == "would" for a in cl.auxes):
+        return "a refusal in the past ('wouldn't work')"  # "would work from the start" is no statement (blind review, round 7)
     if n == "never":
         return extra + [TokenEdit(neg.i, neg.i + 1, "")]
     prev = tokens(doc)[neg.i - 1] if neg.i > 0 else None
@@ -1186,6 +1188,10 @@ def _insertion_guard(cl: Clause, main: list["Token"], lexicon: "Lexicon") -> str
             return f"time frame {x.text!r}"  # "didn't break just two weeks after ...": "not then" (blind review, round 4)
     if any(g.aux_word(a) == "would" for a in cl.auxes) and any(c.dep_ == "xcomp" for c in cl.head.children):
         return "a wish ('would love to')"  # "would hate to know": hypothetical, not an opinion
+    if any(g.aux_word(a) == "would" for a in cl.auxes) and lemma(cl.head).lower() in ("like", "love", "prefer"):
+        return "a wish ('would like')"  # "I'd like a few more soups": a request (blind review, round 7)
+    if lemma(cl.head).lower() in ("continue", "go") and any(c.dep_ == "xcomp" for c in cl.head.children):
+        return f"aspect verb {cl.head.text!r}"  # "*don't continue to be amazed" (blind review, round 7)
     for t in main:
         if any(g.norm(c.text) == "as" and c.dep_ == "advmod" for c in t.children):
             return "equative 'as ... as'"  # "doesn't sound just as good as": a comparison

@@ -7,8 +7,9 @@ Grammar facts the tables rely on (handbook facts of English grammar, from memory
   is conceded while the main clause carries the assertion, wherever the subordinate clause stands
   (Quirk et al. 1985, A Comprehensive Grammar of the English Language, 13.33 on "but" and 15.39 on
   concession; Biber et al. 1999, 10.2 on adverbial clauses) — from memory. "While" and "whereas"
-  mark contrast between clauses; the main clause again carries the assertion (Quirk et al. 15.43,
-  from memory). "However" links two independent clauses, after a semicolon or opening the next
+  mark contrast between clauses; fronted, they leave the assertion to the main clause (Quirk et
+  al. 15.43, from memory); after the main clause they set the two side by side with no weight on
+  either, as both blind judges of round 7 read them, so those are skipped. "However" links two independent clauses, after a semicolon or opening the next
   sentence (Quirk et al. 8.137, from memory).
 * A pronoun may precede its antecedent (backward anaphora, cataphora) when it stands in a fronted
   subordinate clause ("Although it's pricey, the pool is lovely"), but a subject pronoun of a main
@@ -94,7 +95,6 @@ MADE = [
     ("Even though the tent is heavy, it is very roomy.", CONN, "The tent is heavy, even though it is very roomy.", "fall"),
     # while / whereas: swapped, never exchanged for "but"
     ("While the stove is noisy, it is very reliable.", SWAP, "While it is very reliable, the stove is noisy.", "fall"),
-    ("The jacket is warm, whereas the gloves are flimsy.", SWAP, "The gloves are flimsy, whereas the jacket is warm.", "fall"),
     ("Whereas the headlamp is bright, the strap is itchy.", SWAP, "Whereas the strap is itchy, the headlamp is bright.", "rise"),
     # however, after a semicolon
     ("The tent is light; however, the poles are flimsy.", SWAP, "The poles are flimsy; however, the tent is light.", "rise"),
@@ -131,7 +131,8 @@ SKIPPED = [
     # no converse connective
     ("The pan is heavy but durable.", CONN, "no converse"),
     ("While the stove is noisy, it is very reliable.", CONN, "no converse for 'while'"),
-    ("The jacket is warm, whereas the gloves are flimsy.", CONN, "no converse for 'whereas'"),
+    ("The jacket is warm, whereas the gloves are flimsy.", SWAP, "balances the two clauses"),  # blind review, round 7
+    ("The desks are comfy, while the Wi-Fi drops every afternoon.", SWAP, "balances the two clauses"),
     ("The tent is light; however, the poles are flimsy.", CONN, "no converse for 'however'"),
 ]
 

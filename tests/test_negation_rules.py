@@ -75,6 +75,11 @@ CASES = [
     # ---- extreme words under an inserted negation: no longer the opinion (judge brief v2)
     ("The headlamp works perfectly.", "negation/do-support", "The headlamp doesn't work perfectly."),
     ("I hate the tarp I hate the tarp", NO, NO),  # a run-on read as a relative clause with its own opinion verb
+    # ---- blind review, round 7
+    ("I'd like a few more soups in winter.", NO, NO),  # a request, no opinion to flip
+    ("i continue to be amazed by their quality.", NO, NO),  # "*don't continue to be amazed"
+    ("The stove wouldn't light from the start.", NO, NO),  # a refusal in the past: "would light from the start" says nothing
+    ("I wouldn't recommend this tent.", "negation/removal", "I would recommend this tent."),
     # ---- negation/copula: present, past, persons, numbers, both styles
     ("The tent is comfortable.", "negation/copula", "The tent isn't comfortable."),
     ("The tent is comfortable and I don't camp often.", "negation/copula", "The tent isn't comfortable and I don't camp often."),
