@@ -96,6 +96,10 @@ SEQUENCE_WORDS = frozenset(
     "then later first initially originally now anymore eventually finally after afterwards afterward before soon "
     "again still already until till since once recently lately suddenly immediately gradually".split()
 )
+# Feelings the writer had before trying the thing ("I was nervous about leaving my home office"):
+# a past worry, not a verdict on it, so weighing it does not make the text more negative.
+WORRY_WORDS = frozenset({"nervous", "worried", "sceptical", "skeptical", "hesitant", "apprehensive", "unsure",
+                         "afraid", "wary", "doubtful", "anxious"})
 # Additive and anaphoric adverbs: they point back to the other part ("it is also warm").
 ADDITIVE_WORDS = frozenset({"also", "either", "likewise", "similarly", "anyway", "anyways", "so", "therefore", "thus"})
 # Modals and verbs whose complement is not the writer's asserted opinion ("it would be great", "I
@@ -254,6 +258,11 @@ def _sentence_doubt(sent: "Span") -> str | None:
             return "condition or time frame"
         if low in SEQUENCE_WORDS or low in ADDITIVE_WORDS and not _degree(t) or low == "too" and not _degree(t):
             return f"sequence or additive word {low!r}"
+        if low == "used" and t.i + 1 < len(sent.doc) and toks[t.i + 1].lower_ == "to":
+            return "a past state 'used to'"  # "used to be great" says it got worse (blind review, round 8)
+        if low in WORRY_WORDS and any(c.lower_ in ("i", "we") and c.dep_ == "nsubj" for c in t.head.children) \
+                and t.head.tag_ == "VBD":
+            return f"the writer's past worry {low!r}"  # "I was nervous about leaving ...": no complaint (round 8)
         if low == "at" and t.i + 1 < len(sent.doc) and toks[t.i + 1].lower_ in ("first", "last", "least"):
             return f"sequence or additive word 'at {toks[t.i + 1].lower_}'"
         if low in HEDGE_MODALS and t.tag_ == "MD":

@@ -133,6 +133,8 @@ SKIPPED = [
     ("While the stove is noisy, it is very reliable.", CONN, "no converse for 'while'"),
     ("The jacket is warm, whereas the gloves are flimsy.", SWAP, "balances the two clauses"),  # blind review, round 7
     ("The desks are comfy, while the Wi-Fi drops every afternoon.", SWAP, "balances the two clauses"),
+    ("The stove used to be reliable but the new burner is weak.", SWAP, "a past state 'used to'"),  # round 8
+    ("I was worried about the weight, but the pack carries well.", SWAP, "the writer's past worry 'worried'"),  # round 8
     ("The tent is light; however, the poles are flimsy.", CONN, "no converse for 'however'"),
 ]
 
