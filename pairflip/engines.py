@@ -38,7 +38,7 @@ def check_engine(engine: str, *, address: str | None = None, replicas: int | Non
         if given:
             raise PairflipError(f"{', '.join(given)}: only used with --engine ray; add --engine ray or leave them out")
     if address is not None and not address.strip():
-        raise PairflipError("--address '': expected a Ray cluster address such as 10.0.0.5:6379, ray://head:10001 or auto")
+        raise PairflipError("--address '': expected a Ray cluster address such as 10.0.0.5:6379 (the head node) or auto")
     return engine
 
 

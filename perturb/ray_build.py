@@ -76,7 +76,7 @@ class BuildWorker:
         from pairflip import __version__
 
         return {"spacy_model": model_name(self.nlp), "pairflip": __version__, "rules_version": GENERATOR_VERSION,
-                "node": os.uname().nodename, "pid": os.getpid()}
+                "rules_code": rules_code(), "node": os.uname().nodename, "pid": os.getpid()}
 
     def shard(self, sources: list[SourceText], batch_size: int) -> list[Any]:
         """Every text of a shard, in order: TOO_LONG or its units (see the module doc)."""
@@ -103,6 +103,22 @@ class BuildWorker:
                 units.append((key, None, pairs, dict(stats.made), {r: dict(c) for r, c in stats.dropped.items()}))
             out[i] = units
         return out
+
+
+def rules_code() -> str:
+    """A digest of the rule code as found on disk: every module of :mod:`pairflip.perturb` and the
+    records module (pair ids). Two installs of one pairflip version that differ in a rule differ
+    here. (The lexicon needs no check: the driver sends its own to the actors.)"""
+    import hashlib
+    from pathlib import Path
+
+    import pairflip.records
+
+    h = hashlib.sha256()
+    folder = Path(__file__).resolve().parent
+    for path in sorted(folder.glob("*.py")) + [Path(pairflip.records.__file__)]:
+        h.update(path.name.encode("utf-8") + b"\x1f" + path.read_bytes() + b"\x1e")
+    return h.hexdigest()
 
 
 def shard_size(total: int | None, replicas: int, shards: int | None) -> int:
@@ -187,6 +203,7 @@ def _check_actors(ray: Any, actors: list[Any], expected: str) -> None:
         from pairflip.engines import remote_error
 
         raise PairflipError(f"--engine ray: a build actor failed to start ({remote_error(err)})") from None
+    code = rules_code()
     for info in infos:
         if "error" in info:
             raise PairflipError(f"--engine ray: a build actor: {info['error']}")
@@ -195,10 +212,11 @@ def _check_actors(ray: Any, actors: list[Any], expected: str) -> None:
                 f"--engine ray: the build actor on {info['node']} loaded spaCy {info['spacy_model']}, this process "
                 f"{expected}; install the same pipeline on every node (or pass --spacy-model) so the suite is the same"
             )
-        if info["pairflip"] != __version__ or info["rules_version"] != GENERATOR_VERSION:
+        if info["pairflip"] != __version__ or info["rules_version"] != GENERATOR_VERSION or info["rules_code"] != code:
             raise PairflipError(
-                f"--engine ray: the build actor on {info['node']} runs pairflip {info['pairflip']}, this process "
-                f"{__version__}; install the same pairflip on every node"
+                f"--engine ray: the build actor on {info['node']} runs pairflip {info['pairflip']} with rule code "
+                f"{info['rules_code'][:12]}, this process {__version__} with {code[:12]}; install the same pairflip on "
+                f"every node so the suite is the same"
             )
 
 
