@@ -21,6 +21,7 @@ from __future__ import annotations
 import json
 import os
 import random
+import re
 import signal
 import sqlite3
 import subprocess
@@ -332,3 +333,62 @@ def test_score_engine_options_are_checked(cluster, demo_suite_file, tmp_path):
     r = run_cli([*base, "--address", "127.0.0.1:1"])
     assert r.code == 2 and "--address: only used with --engine ray" in r.stderr
     assert not (tmp_path / "r.jsonl").exists()
+
+
+class _FakeRef:
+    def __init__(self, value):
+        self.value = value
+
+
+class _FakeRay:
+    """Enough of the ray module for the actor checks: refs that are ready at once."""
+
+    @staticmethod
+    def wait(refs, num_returns=1, timeout=None):
+        return list(refs), []
+
+    @staticmethod
+    def get(refs):
+        return [r.value for r in refs]
+
+
+class _FakeActor:
+    def __init__(self, info):
+        self.ready = type("M", (), {"remote": staticmethod(lambda: _FakeRef(info))})
+
+
+def test_build_actors_that_would_build_differently_are_refused(nlp):
+    from pairflip import __version__
+    from pairflip.perturb.build import GENERATOR_VERSION
+    from pairflip.perturb.nlp import model_name
+    from pairflip.perturb.ray_build import _check_actors, rules_code
+    from pairflip.records import PairflipError
+
+    good = {"spacy_model": model_name(nlp), "pairflip": __version__, "rules_version": GENERATOR_VERSION,
+            "rules_code": rules_code(), "node": "node-b", "pid": 1}
+    _check_actors(_FakeRay, [_FakeActor(good)], model_name(nlp))  # the same: accepted
+    cases = [
+        (dict(good, spacy_model="en_core_web_md-3.8.0"), "loaded spaCy en_core_web_md-3.8.0"),
+        (dict(good, rules_code="0" * 64), "with rule code 000000000000"),
+        (dict(good, pairflip="0.0.1"), "runs pairflip 0.0.1"),
+        ({"error": "--spacy-model 'xx': cannot load it"}, "a build actor: --spacy-model 'xx'"),
+    ]
+    for info, words in cases:
+        with pytest.raises(PairflipError, match=re.escape(words)):
+            _check_actors(_FakeRay, [_FakeActor(good), _FakeActor(info)], model_name(nlp))
+
+
+def test_model_actors_holding_different_models_are_refused():
+    from pairflip.probes.ray_score import RayModel
+    from pairflip.records import PairflipError
+
+    def info(fp, node):
+        return {"describe": {"name": "m.joblib", "spec": "m.joblib", "kind": "file", "fingerprint": fp}, "fingerprint": fp,
+                "spec": "m.joblib", "name": "m.joblib", "kind": "file", "classes": ["neg", "pos"], "key_covers": None,
+                "node": node}
+
+    m = RayModel.__new__(RayModel)  # the checks alone, no actors
+    m._adopt("m.joblib", [info("a" * 64, "n1"), info("a" * 64, "n2")])
+    assert m.fingerprint() == "a" * 64 and m.classes == ["neg", "pos"] and m.describe()["spec"] == "m.joblib"
+    with pytest.raises(PairflipError, match="the actors on n1 and n2 hold different models"):
+        m._adopt("m.joblib", [info("a" * 64, "n1"), info("b" * 64, "n2")])
