@@ -63,6 +63,8 @@ def ray_session(address: str | None = None) -> Iterator[Any]:
     os.environ.setdefault("RAY_USAGE_STATS_ENABLED", "0")
     # ray.init installs its own SIGTERM handler (sys.exit); the command line's handlers, which
     # turn SIGINT/SIGTERM into a clean stop, are put back.
+    if address is not None:
+        _probe(address)
     handlers = {s: signal.getsignal(s) for s in (signal.SIGINT, signal.SIGTERM)}
     try:
         if address is None:
@@ -70,6 +72,14 @@ def ray_session(address: str | None = None) -> Iterator[Any]:
                      logging_level=logging.ERROR)
         else:
             ray.init(address=address, log_to_driver=False, logging_level=logging.ERROR)
+    except SystemExit as err:
+        # a SIGTERM while ray.init runs reaches Ray's handler: hand it to the one that was in force
+        # (the command line's, which stops cleanly with exit 143), as if it had come a moment later
+        before = handlers.get(signal.SIGTERM)
+        if err.code == signal.SIGTERM and callable(before):
+            _restore(handlers)
+            before(signal.SIGTERM, None)
+        raise
     except Exception as err:  # ConnectionError, ValueError, RuntimeError: each says why in its text
         first = (str(err).strip().splitlines() or [type(err).__name__])[0]
         where = f"--address {address}: cannot join the Ray cluster" if address else "--engine ray: cannot start a local Ray instance"
@@ -83,6 +93,24 @@ def ray_session(address: str | None = None) -> Iterator[Any]:
             ray.shutdown()
         finally:
             _restore(handlers)
+
+
+def _probe(address: str) -> None:
+    """A HOST:PORT address that nothing answers fails at once: Ray itself retries for minutes."""
+    import socket
+
+    host, sep, port = address.strip().rpartition(":")
+    if not sep or not port.isdigit() or "://" in address:
+        return  # "auto" or another form: Ray's own lookup says what is wrong
+    try:
+        socket.create_connection((host.strip("[]"), int(port)), timeout=PROBE_SECONDS).close()
+    except OSError as err:
+        reason = err.strerror or type(err).__name__
+        raise PairflipError(f"--address {address}: no Ray head node answers there ({reason}); "
+                            f"expected the HOST:PORT that `ray start --head` printed") from None
+
+
+PROBE_SECONDS = 5.0
 
 
 def _restore(handlers: dict[int, Any]) -> None:

@@ -392,3 +392,20 @@ def test_model_actors_holding_different_models_are_refused():
     assert m.fingerprint() == "a" * 64 and m.classes == ["neg", "pos"] and m.describe()["spec"] == "m.joblib"
     with pytest.raises(PairflipError, match="the actors on n1 and n2 hold different models"):
         m._adopt("m.joblib", [info("a" * 64, "n1"), info("b" * 64, "n2")])
+
+
+def test_an_address_nothing_answers_fails_at_once():
+    import socket
+
+    from pairflip.engines import _probe
+    from pairflip.records import PairflipError
+
+    s = socket.socket()
+    s.bind(("127.0.0.1", 0))
+    port = s.getsockname()[1]
+    s.close()  # nothing listens there now
+    t0 = time.monotonic()
+    with pytest.raises(PairflipError, match=rf"--address 127.0.0.1:{port}: no Ray head node answers there"):
+        _probe(f"127.0.0.1:{port}")
+    assert time.monotonic() - t0 < 10  # Ray's own attempt takes minutes
+    _probe("auto")  # left to Ray's own lookup
