@@ -19,12 +19,11 @@ from dataclasses import dataclass
 from pathlib import Path
 from typing import Any, Iterator, TextIO
 
-from pairflip.files import _normal_encoding, read_corpus
-from pairflip.labels import LabelMap, normalise_label
+from pairflip.files import _normal_encoding, json_object, read_corpus
+from pairflip.labels import LabelMap, count_corpus_labels
 from pairflip.records import PairflipError, SourceText, text_digest
 
 ADDED = ("source_id", "rule")  # the columns (fields) augment adds to every row
-MAX_LABELS = 50  # more distinct values than this: the column is not a class label
 
 
 @dataclass
@@ -93,30 +92,12 @@ def open_labelled(
     name = f"column {label_column!r}" if label_column is not None else f"field {label_field!r}"
     opt = "--label-column" if label_column is not None else "--label-field"
     given = LabelMap.from_labels(labels) if labels is not None else None
-    counts: Counter = Counter()
     digests: set[bytes] = set()
-    for item in read_corpus(path, text_column=text_column, label_column=label_column, text_field=text_field,
-                            label_field=label_field, encoding=encoding):
-        digests.add(text_digest(item.text))
-        lab = normalise_label(item.label)
-        if given is not None:
-            try:
-                lab = given.canonical(lab)
-            except PairflipError:
-                raise PairflipError(
-                    f"{item.where}: label {lab!r} ({name}) is not among --labels ({', '.join(given.order)}); "
-                    f"expected one of them, or add it to --labels"
-                ) from None
-        elif lab not in counts and len(counts) >= MAX_LABELS:
-            raise PairflipError(f"{item.where}: {name} holds more than {MAX_LABELS} distinct values; "
-                                f"expected class labels (is {opt} the right one?)")
-        counts[lab] += 1
-    if given is None:
-        try:
-            given = LabelMap.recognise(counts)
-        except PairflipError as err:
-            raise PairflipError(f"{path}: {name}: {err}") from None
-        counts = Counter({given.canonical(k): v for k, v in counts.items()})
+    items = read_corpus(path, text_column=text_column, label_column=label_column, text_field=text_field,
+                        label_field=label_field, encoding=encoding)
+    given, raw = count_corpus_labels(items, path=path, given=given, name=name, opt=opt,
+                                     each=lambda item: digests.add(text_digest(item.text)))
+    counts = Counter({given.canonical(k): v for k, v in raw.items()})
     columns: list[str] = []
     if suffix in (".csv", ".tsv"):
         with io.open(path, "r", encoding=_normal_encoding(encoding), newline="") as fh:
@@ -226,12 +207,7 @@ def training_sources(path: Path, encoding: str = "utf-8") -> Any:
             for lineno, line in enumerate(fh, 1):
                 if not line.strip():
                     continue
-                try:
-                    obj = json.loads(line)
-                except json.JSONDecodeError as err:
-                    raise PairflipError(f"--trained-on {path}:{lineno}: malformed JSON ({err.msg}); expected one JSON object per line") from None
-                if not isinstance(obj, dict):
-                    raise PairflipError(f"--trained-on {path}:{lineno}: expected a JSON object")
+                obj = json_object(line, f"--trained-on {path}:{lineno}")
                 out.add_id(obj.get("source_id"))
                 for v in obj.values():
                     out.add_text(v)

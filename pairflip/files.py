@@ -65,6 +65,17 @@ def _json_problem(err: json.JSONDecodeError) -> str:
     return f"{msg} at column {err.colno}"
 
 
+def json_object(line: str, where: str, expected: str = "one JSON object per line") -> dict:
+    """One line of a JSON Lines file as a dict, or exit 2 naming ``where`` (``path:line``)."""
+    try:
+        obj = json.loads(line)
+    except json.JSONDecodeError as err:
+        raise PairflipError(f"{where}: malformed JSON ({_json_problem(err)}); expected {expected}") from None
+    if not isinstance(obj, dict):
+        raise PairflipError(f"{where}: expected a JSON object, got {_json_type(obj)}")
+    return obj
+
+
 def _short(value: Any, limit: int = 60) -> str:
     text = repr(value)
     return text if len(text) <= limit else text[: limit - 3] + "..."
@@ -389,14 +400,7 @@ def _read_jsonl(p: Path, fh: TextIO, text_field: str, label_field: str | None) -
     for lineno, line in enumerate(fh, 1):
         if not line.strip():
             continue
-        try:
-            obj = json.loads(line)
-        except json.JSONDecodeError as err:
-            raise PairflipError(
-                f"{p}:{lineno}: malformed JSON ({_json_problem(err)}); expected one JSON object per line"
-            ) from None
-        if not isinstance(obj, dict):
-            raise PairflipError(f"{p}:{lineno}: expected a JSON object, got {_json_type(obj)}")
+        obj = json_object(line, f"{p}:{lineno}")
         if lineno == 1 and obj.get("kind") in _KIND_NAMES:
             name, maker = _KIND_NAMES[obj["kind"]]
             raise PairflipError(

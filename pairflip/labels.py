@@ -234,3 +234,44 @@ def _finite(x: Any) -> float | None:
     except (TypeError, ValueError):
         return None
     return f if math.isfinite(f) else None
+
+
+# More distinct values than this in a label column: it is not a class label (common practice: a
+# sentiment scale has a handful of classes; 50 leaves room for fine-grained ratings).
+MAX_LABELS = 50
+
+
+def count_corpus_labels(
+    items: Iterable[Any], *, path: Any, given: "LabelMap | None", name: str, opt: str, each: Any = None,
+) -> tuple["LabelMap", dict[str, int]]:
+    """Count the labels of a labelled corpus's items (each with ``.label`` and ``.where``).
+
+    ``given`` (from ``--labels``) maps every label or fails on the first it does not know; without
+    it the labels seen must form a known scale (else the error names ``path``). ``name`` says where the labels come from ("column
+    'stars'") and ``opt`` the option that named it, for the messages. ``each(item)``, if given, is
+    called on every item. Returns the label map and the counts of the labels as written."""
+    counts: dict[str, int] = {}
+    for item in items:
+        if each is not None:
+            each(item)
+        lab = normalise_label(item.label)
+        if given is not None:
+            try:
+                lab = given.canonical(lab)
+            except PairflipError:
+                raise PairflipError(
+                    f"{item.where}: label {lab!r} ({name}) is not among --labels ({given.describe()}); "
+                    f"expected one of {', '.join(given.order)}, or add it to --labels"
+                ) from None
+        elif lab not in counts and len(counts) >= MAX_LABELS:
+            raise PairflipError(
+                f"{item.where}: {name} holds more than {MAX_LABELS} distinct values; expected class labels "
+                f"(is {opt} the right one?)"
+            )
+        counts[lab] = counts.get(lab, 0) + 1
+    if given is None:
+        try:
+            given = LabelMap.recognise(counts)
+        except PairflipError as err:
+            raise PairflipError(f"{path}: {name}: {err}") from None
+    return given, counts

@@ -92,7 +92,6 @@ NEGATORS = frozenset({"not", "never", "no", "nothing", "nobody", "none", "nowher
 # Comprehensive Grammar of the English Language).
 LINKING_VERBS = frozenset({"look", "feel", "seem", "sound", "smell", "taste", "stay", "remain", "get",
                            "become", "appear", "turn", "grow"})
-MAX_LABELS = 50  # more distinct labels than this: the column is not a class label
 
 
 # --------------------------------------------------------------------------- the estimator
@@ -442,7 +441,7 @@ def open_labelled_corpus(
     """Read the corpus once without parsing: every input error shows up now, and the labels are
     mapped to polarities (``labels``: most negative first, as ``--labels``; else a known scale)."""
     from pairflip.files import read_corpus
-    from pairflip.labels import LabelMap, normalise_label
+    from pairflip.labels import LabelMap, count_corpus_labels
 
     suffix = Path(path).suffix.lower()
     if label_column is None and label_field is None:
@@ -462,28 +461,7 @@ def open_labelled_corpus(
                            label_field=label_field, encoding=encoding)
 
     given = LabelMap.from_labels(labels) if labels is not None else None
-    counts: Counter = Counter()
-    for item in read():
-        lab = normalise_label(item.label)
-        if given is not None:
-            try:
-                lab = given.canonical(lab)
-            except PairflipError:
-                raise PairflipError(
-                    f"{item.where}: label {lab!r} ({name}) is not among --labels ({given.describe()}); "
-                    f"expected one of {', '.join(given.order)}"
-                ) from None
-        elif lab not in counts and len(counts) >= MAX_LABELS:
-            raise PairflipError(
-                f"{item.where}: {name} holds more than {MAX_LABELS} distinct values; expected class labels "
-                f"(is {opt} the right one?)"
-            )
-        counts[lab] += 1
-    if given is None:
-        try:
-            given = LabelMap.recognise(counts)
-        except PairflipError as err:
-            raise PairflipError(f"{path}: {name}: {err}") from None
+    given, counts = count_corpus_labels(read(), path=path, given=given, name=name, opt=opt)
     corpus = LabelledCorpus(Path(path), given, name, dict(counts), read)
     pc = corpus.polarity_counts()
     if not pc["positive"] or not pc["negative"]:
