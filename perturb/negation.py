@@ -235,7 +235,25 @@ def _word_opinion(tok: "Token", lexicon: "Lexicon"):
         tok.dep_ == "acomp" or any(c.dep_ == "auxpass" for c in tok.children)
     ):  # "I was impressed / disappointed" (passive), not "I have worn"
         hit = lexicon.lookup(g.norm(tok.text), "ADJ")
+    if hit is None and pos in ("ADJ", "ADV") and excess_degree(tok) is not None:
+        # "too small", "took too long": "too" says the degree passes what is wanted, a complaint
+        # whatever the adjective (handbook grammar: "too" + adjective/adverb = more than is
+        # acceptable or needed; e.g. Swan, Practical English Usage, "too"), so the pair is an
+        # opinion of its own. A listed word keeps its entry ("too good to be true").
+        from pairflip.perturb.lexicon import OpinionWord
+
+        hit = OpinionWord(g.norm(tok.text), pos, -1, "gradable")
     return hit
+
+
+def excess_degree(tok: "Token") -> "Token | None":
+    """The "too" right before an adjective or adverb and modifying it ("too small"), or None."""
+    if tok.i == 0:
+        return None
+    prev = tok.doc[tok.i - 1]
+    if g.norm(prev.text) == "too" and prev.head.i == tok.i and prev.dep_ == "advmod":
+        return prev
+    return None
 
 
 _PERSONS = frozenset({"i", "we", "you", "he", "she"})
@@ -324,7 +342,14 @@ EVENT_VERBS = frozenset(
     "work load open start charge connect sync arrive respond reply answer receive fit close fasten "
     "zip stay hold light ignite accept recognise recognize update deliver refund fix resolve solve "
     "last boot launch print appear register process honour honor inflate seal lock unlock notify "
-    "apologise apologize listen turn show get let".split())
+    "apologise apologize listen turn show get let "
+    # more expected events of service text: a page that "doesn't exist", colours that "don't match",
+    # a bot that "doesn't understand", a box that "never came", "I can't cancel / log in / reach anyone"
+    "come match understand help care exist cancel reach contact speak talk log sign install download "
+    "pair scan track cook heat dry drain stick include support allow bother send call pick run play".split())
+# Extra conditions on some of them (table cases in tests/test_negation_rules.py):
+_EVENT_PARTICLES = {"call": {"back"}, "pick": {"up"}, "log": {"in", "on"}, "sign": {"in", "up", "on"}}
+_EVENT_PREPS = {"speak": {"to", "with"}, "talk": {"to", "with"}}
 # Verbs whose negation goes with "again" in a refusal to come back ("we won't order from them again").
 _RETURN_VERBS = frozenset("order buy shop use book come go sail stay fly eat return visit recommend".split())
 # Objects after "get" that make a missing event a complaint ("didn't get a refund / a reply").
@@ -335,6 +360,8 @@ _GET_OBJECTS = frozenset("refund reply response answer confirmation email call o
 def _negated_event(cl: "Clause") -> bool:
     """Is this clause a negated expected event, whose negation carries the opinion?"""
     head = cl.head
+    if head.dep_ in ("ROOT", "conj") and no_object(cl) is not None and (cl.subj is not None or dropped_subject(cl)):
+        return True  # "the shower has no hot water": the missing thing is the complaint
     if head.pos_ != "VERB" or len(cl.negs) != 1 or cl.other_negs or head.dep_ not in ("ROOT", "conj"):
         return False
     if cl.subj is None and not dropped_subject(cl):
@@ -351,7 +378,52 @@ def _negated_event(cl: "Clause") -> bool:
         return any(c.dep_ == "prt" and g.norm(c.text) in ("on", "up") for c in head.children)
     if verb == "work" and cl.subj is not None and g.norm(cl.subj.text) in _PERSONS:
         return False  # "I don't work weekends": a person's job
+    prts = {g.norm(c.text) for c in head.children if c.dep_ == "prt" or (c.dep_ == "advmod" and c.i == head.i + 1)}
+    if verb in _EVENT_PARTICLES:
+        return bool(prts & _EVENT_PARTICLES[verb])  # "never called back", "can't log in"
+    if verb in _EVENT_PREPS:  # "can't speak to a human", not "I don't speak Spanish"
+        return any(c.dep_ == "prep" and g.norm(c.text) in _EVENT_PREPS[verb] for c in head.children)
+    if verb == "run" and prts:
+        return False  # "doesn't run out": removing it reports a fault
+    if verb == "care" and cl.subj is not None and g.norm(cl.subj.text) in ("i", "we"):
+        return False  # "I don't care what it costs": the writer's indifference, not a fault
     return True
+
+
+# Verbs whose object "no X" is a missing thing: removing "no" leaves the thing there ("the shower
+# has no hot water" -> "has hot water", "I had no problems" -> "I had problems"); and there-be.
+_NO_OBJECT_VERBS = frozenset("have get receive offer include provide come".split())
+# Nouns that take no article in the singular (uncountable in the sense of service text; handbook
+# grammar of mass nouns, from memory: water, information, advice, ...). A singular count noun
+# would need "a" ("has no lid" -> "has a lid"), so only plurals and these lose "no".
+MASS_NOUNS = frozenset(
+    "water heating power electricity signal reception wifi internet privacy space storage parking light "
+    "information help support advice feedback communication compensation service food milk sauce "
+    "seasoning flavour flavor taste salt sugar stock variety value furniture equipment luggage "
+    "packaging insulation ventilation air sound progress news notice contact warmth shade soap "
+    "paper ice change protection padding grip traction ventilation".split())
+
+
+def no_object(cl: "Clause") -> "Token | None":
+    """The clause's one negator when it is the determiner "no" of a missing thing ("has no hot
+    water", "there are no instructions", "came with no manual"'s plural or mass noun), else None."""
+    if cl.negs or len(cl.other_negs) != 1:
+        return None
+    no = cl.other_negs[0]
+    noun = no.head
+    if g.norm(no.text) != "no" or no.dep_ != "det" or noun.pos_ != "NOUN":
+        return None
+    if not (noun.tag_ == "NNS" or (noun.tag_ == "NN" and lemma(noun).lower() in MASS_NOUNS)):
+        return None
+    head = cl.head
+    verb = lemma(head).lower()
+    if noun.dep_ == "dobj" and noun.head.i == head.i and verb in _NO_OBJECT_VERBS:
+        return no
+    if noun.dep_ == "pobj" and verb == "come" and noun.head.head.i == head.i and g.norm(noun.head.text) == "with":
+        return no  # "it came with no instructions"
+    if noun.dep_ == "attr" and noun.head.i == head.i and cl.subj is not None and cl.subj.dep_ == "expl":
+        return no  # "there is no privacy"
+    return None
 
 
 def _neg_norm(tok: "Token") -> str:
@@ -789,13 +861,17 @@ def removal(cl: Clause) -> list[TokenEdit] | str:
     doc = head.doc
     if lemma(head).lower() in NEGATIVE_IDIOM_VERBS:
         return f"idiom 'can't {head.text}'"  # "can't complain" is praise; "can complain" is no English
+    if lemma(head).lower() == "help" and any(g.aux_word(a) in ("can", "could") for a in cl.auxes) and any(
+            c.dep_ in ("xcomp", "ccomp", "cc", "prep") or c.tag_ == "VBG" for c in head.children):
+        return "idiom 'can't help'"  # "couldn't help noticing": "could help noticing" is no English
     if subj is None and not dropped_subject(cl):
         return "no subject (imperative or fragment)"
-    if cl.other_negs:
+    no = no_object(cl)
+    if cl.other_negs and no is None:
         return f"negator {cl.other_negs[0].text!r} is not removable"
-    if len(cl.negs) != 1:
+    if no is None and len(cl.negs) != 1:
         return "more than one negation"
-    neg = cl.negs[0]
+    neg = cl.negs[0] if no is None else no
     if subj is not None and neg.i < subj.i:
         return "negation before the subject"
     extra: list[TokenEdit] = []
@@ -814,6 +890,10 @@ def removal(cl: Clause) -> list[TokenEdit] | str:
         if n in _MINIMISERS and x.i > 0 and g.norm(tokens(doc)[x.i - 1].text) == "a":
             return f"minimiser 'a {x.text}'"
     nxt = tokens(doc)[neg.i + 1] if neg.i + 1 < len(doc) else None
+    if no is not None:
+        if nxt is not None and g.norm(nxt.text) in ("more", "less", "other", "longer", "such", "fewer", "real", "way"):
+            return f"'no {nxt.text}'"  # "no more than", "no other choice", "no real problems"
+        return extra + [TokenEdit(no.i, no.i + 1, "")]
     if nxt is not None and g.norm(nxt.text) in _NOT_FOLLOWERS:
         return f"'{neg.text} {nxt.text}' is an idiom"
     n = _neg_norm(neg)
@@ -1098,11 +1178,15 @@ def _emphasised(tok: "Token", lexicon: "Lexicon", inserting: bool = True) -> str
         return f"extreme adverb {tok.text!r}"  # removal from "hasn't worked flawlessly": the source is a hedge
     if tok.is_alpha and tok.text.isupper() and len(tok.text) > 1:
         return f"opinion word in capitals {tok.text!r}"
+    if inserting and entry is not None and entry.polarity > 0 and excess_degree(tok) is not None:
+        return f"'too' on praise {tok.text!r}"  # "wasn't too good to be true" still praises
     for c in tok.children:
         if c.dep_ in ("advmod", "amod", "det", "predet") and g.norm(c.text) in EXTREME_DEGREE:
             return f"extreme amplifier {c.text!r}"
         if inserting and entry is not None and entry.polarity < 0 and c.dep_ == "advmod" and c.i < tok.i \
                 and g.norm(c.text) in WEAKENING_AFTER_NOT:
+            if g.norm(c.text) == "too" and not list(c.children):
+                continue  # "isn't too heavy": the excess, the complaint, is denied (flip: gone)
             return f"degree {c.text!r} under a negation"  # "Not so annoyed" is less annoyed (blind review, round 4)
     return None
 
@@ -1207,7 +1291,8 @@ def _insertion_guard(cl: Clause, main: list["Token"], lexicon: "Lexicon") -> str
             return f"opinion word {t.text!r} off the predicate"  # "bright, easy to see, with nice colors"
     for t in main:
         entry = opinion_of(t, lexicon)
-        degree = [c for c in t.children if c.dep_ == "advmod" and g.norm(c.text) in _DEGREE_HEDGE]
+        degree = [c for c in t.children if c.dep_ == "advmod" and g.norm(c.text) in _DEGREE_HEDGE
+                  and not (g.norm(c.text) == "too" and not list(c.children))]  # "isn't too heavy" denies the excess
         if t.i == cl.head.i or t.head.i == cl.head.i:
             degree += [c for c in cl.head.children if c.dep_ == "advmod" and g.norm(c.text) in _DEGREE_HEDGE and c.i < cl.head.i]
         if entry is not None and entry.polarity < 0 and degree:

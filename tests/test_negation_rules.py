@@ -59,6 +59,34 @@ CASES = [
     ("I don't usually write reviews.", NO, NO),  # a plain fact about the writer
     ("I didn't get a chance to use it.", NO, NO),  # "get" counts only with a refund, a reply, an order ...
     ("I don't work weekends.", NO, NO),  # a person's job, not a product that works
+    ("The courier never came.", "negation/removal", "The courier came."),
+    ("The colours don't match the photos.", "negation/removal", "The colours match the photos."),
+    ("The cancel page doesn't exist.", "negation/removal", "The cancel page exists."),
+    ("You cannot speak to a human.", "negation/removal", "You can speak to a human."),
+    ("i cant log in.", "negation/removal", "i can log in."),
+    ("They never called back.", "negation/removal", "They called back."),
+    ("I can't cancel my plan online.", "negation/removal", "I can cancel my plan online."),
+    ("The rental desk doesn't care.", "negation/removal", "The rental desk cares."),
+    ("I don't speak Spanish.", NO, NO),  # "speak" counts only as speaking to someone
+    ("I don't care what it costs.", NO, NO),  # the writer's own indifference, not a fault
+    ("The battery doesn't run out.", NO, NO),  # "runs out" with a particle is a fault, not what is expected
+    ("I couldn't help noticing the price.", NO, NO),  # idiom: "*could help noticing"
+    ("The bot doesn't understand anything.", NO, NO),  # negative-polarity "anything" under the negation
+    # ---- "no" before a missing thing (a plural or a mass noun): removing it leaves the thing there
+    ("The shower has no hot water.", "negation/removal", "The shower has hot water."),
+    ("I had no problems with the tent.", "negation/removal", "I had problems with the tent."),
+    ("There are no instructions.", "negation/removal", "There are instructions."),
+    ("The lantern came with no batteries.", "negation/removal", "The lantern came with batteries."),
+    ("The pot has no lid.", NO, NO),  # a singular count noun would need "a"
+    ("The kit has no real flaws.", NO, NO),  # "no real": "*has real flaws" changes more than the negation
+    ("There is no more than one towel.", NO, NO),  # "no more than" is a measure
+    # ---- "too" + adjective: an excess is a complaint whatever the adjective; "not too X" denies it
+    ("The portions are too small.", "negation/copula", "The portions aren't too small."),
+    ("The pack is too heavy for day hikes.", "negation/copula", "The pack isn't too heavy for day hikes."),
+    ("It took too long.", "negation/do-support", "It didn't take too long."),
+    ("The portions are way too small.", NO, NO),  # "*aren't way too small": a degree on "too"
+    ("The sauce was a bit too salty.", NO, NO),  # "*wasn't a bit too salty"
+    ("It was too good to be true.", NO, NO),  # "too" on praise: "wasn't too good to be true" still praises
     # ---- informal negators without the apostrophe: removal keeps the text's own style
     ("i dont like the new zip.", "negation/removal", "i like the new zip."),
     ("the stove doesnt work in the cold.", "negation/removal", "the stove works in the cold."),
@@ -237,7 +265,7 @@ CASES = [
     ("It isn't even close to comfortable.", NO, NO),
     ("It is not only light but also warm.", NO, NO),
     ("Nobody liked the lantern.", NO, NO),
-    ("There were no problems.", NO, NO),
+    ("There were no problems.", "negation/removal", "There were problems."),  # flip: praise gone (brief v2)
     ("I love it too.", NO, NO),
     ("The stove is pretty good.", NO, NO),
     ("It is absolutely perfect.", NO, NO),
