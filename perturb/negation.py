@@ -45,7 +45,14 @@ noun-phrase modifier). See :func:`text_guard` and :func:`clause_doubt`.
 A negated clause with no opinion word is still an opinion clause when its verb is what a
 product or service is expected to do (:data:`EVENT_VERBS`: "the map won't load", "support never
 replied", "I haven't received my refund" -> "... have received ...") or a refusal to come back
-("we won't order again"): removing the negation leaves no complaint. Informal "dont"/"doesnt"
+("we won't order again"), and so is a clause whose only negator is the determiner "no" before a
+missing thing, a plural or a mass noun ("the shower has no hot water", "there are no instructions",
+"I had no problems" -> "... has hot water", "there are instructions", "I had problems"): removing
+the negation leaves no complaint (or no praise). A subject "nobody" / "no one" of what someone
+was expected to do becomes "somebody" / "someone" ("nobody called" -> "somebody called"). An adjective or adverb after "too" that the
+lexicon does not list is a complaint ("too small", "took too long"), and "too" on a negative word
+may be negated ("isn't too heavy": the excess is denied); "too" on praise is left alone ("too good
+to be true"). Informal "dont"/"doesnt"
 are removed like "don't" ("i dont like it" -> "i like it"), and "yet" goes with a removed
 negation ("hasn't arrived yet" -> "has arrived").
 
@@ -360,6 +367,8 @@ _GET_OBJECTS = frozenset("refund reply response answer confirmation email call o
 def _negated_event(cl: "Clause") -> bool:
     """Is this clause a negated expected event, whose negation carries the opinion?"""
     head = cl.head
+    if head.dep_ in ("ROOT", "conj") and nobody_subject(cl) is not None:
+        return True  # "nobody called": someone was expected to
     if head.dep_ in ("ROOT", "conj") and no_object(cl) is not None and (cl.subj is not None or dropped_subject(cl)):
         return True  # "the shower has no hot water": the missing thing is the complaint
     if head.pos_ != "VERB" or len(cl.negs) != 1 or cl.other_negs or head.dep_ not in ("ROOT", "conj"):
@@ -423,6 +432,30 @@ def no_object(cl: "Clause") -> "Token | None":
         return no  # "it came with no instructions"
     if noun.dep_ == "attr" and noun.head.i == head.i and cl.subj is not None and cl.subj.dep_ == "expl":
         return no  # "there is no privacy"
+    return None
+
+
+# Verbs a negative subject ("nobody", "no one") makes a complaint with: someone was expected to
+# do it ("nobody called", "no one answered the help line", "nobody told me about the change").
+_NOBODY_VERBS = frozenset("call ring answer reply respond help tell explain warn contact email read check "
+                          "come listen care bother apologise apologize pick show turn fix".split())
+
+
+def nobody_subject(cl: "Clause") -> "tuple[int, int, str] | None":
+    """``(start, end, replacement)`` when the clause's one negator is its subject "nobody" / "no
+    one" and its verb is something someone was expected to do, else None."""
+    if cl.negs or len(cl.other_negs) != 1 or cl.subj is None or cl.head.pos_ != "VERB":
+        return None
+    neg, subj = cl.other_negs[0], cl.subj
+    verb = lemma(cl.head).lower()
+    if verb not in _NOBODY_VERBS or cl.auxes and g.aux_word(cl.auxes[0]) in ("would", "could", "can", "will"):
+        return None  # "nobody could have been more patient": praise with a modal
+    if verb in _EVENT_PARTICLES and not {g.norm(c.text) for c in cl.head.children if c.dep_ == "prt"} <= _EVENT_PARTICLES[verb]:
+        return None
+    if neg.i == subj.i and g.norm(neg.text) == "nobody":
+        return subj.i, subj.i + 1, match_case("somebody", subj.text)
+    if g.norm(neg.text) == "no" and neg.dep_ == "det" and neg.head.i == subj.i and g.norm(subj.text) == "one":
+        return neg.i, subj.i + 1, match_case("someone", neg.text)
     return None
 
 
@@ -866,6 +899,12 @@ def removal(cl: Clause) -> list[TokenEdit] | str:
         return "idiom 'can't help'"  # "couldn't help noticing": "could help noticing" is no English
     if subj is None and not dropped_subject(cl):
         return "no subject (imperative or fragment)"
+    nobody = nobody_subject(cl)
+    if nobody is not None:
+        for x in cl.own:
+            if g.norm(x.text) in NPI or g.norm(x.text) in SCOPE_WORDS or g.norm(x.text) in ("other", "else"):
+                return f"negative-polarity word {x.text!r}"  # "nobody offered any compensation"
+        return [TokenEdit(*nobody)]
     no = no_object(cl)
     if cl.other_negs and no is None:
         return f"negator {cl.other_negs[0].text!r} is not removable"

@@ -72,6 +72,13 @@ CASES = [
     ("The battery doesn't run out.", NO, NO),  # "runs out" with a particle is a fault, not what is expected
     ("I couldn't help noticing the price.", NO, NO),  # idiom: "*could help noticing"
     ("The bot doesn't understand anything.", NO, NO),  # negative-polarity "anything" under the negation
+    # ---- a negative subject of what someone was expected to do: "nobody" -> "somebody"
+    ("No one answered the help line.", "negation/removal", "Someone answered the help line."),
+    ("Nobody called.", "negation/removal", "Somebody called."),
+    ("Nobody told me about the change.", "negation/removal", "Somebody told me about the change."),
+    ("Nobody could have been more patient.", NO, NO),  # praise with a modal: not a missing event
+    ("Nobody ever replies to emails.", NO, NO),  # negative-polarity "ever" would need "always"
+    ("Nobody else called.", NO, NO),  # "somebody else" changes who is meant
     # ---- "no" before a missing thing (a plural or a mass noun): removing it leaves the thing there
     ("The shower has no hot water.", "negation/removal", "The shower has hot water."),
     ("I had no problems with the tent.", "negation/removal", "I had problems with the tent."),
