@@ -613,6 +613,10 @@ def fragment(sent, lexicon: "Lexicon") -> Fragment | str:
     ops = [t for t in toks if opinion_of(t, lexicon) is not None]
     if len(ops) == 2 and root in ops and root.pos_ == "NOUN" and len({opinion_of(t, lexicon).polarity for t in ops}) == 1:
         ops.remove(root)  # "Great value.": the noun agrees with its adjective
+    if len(ops) > 1 and root.pos_ == "ADJ":
+        listed = _adjective_list(sent, root, toks, ops, lexicon)
+        if listed is not None:
+            return listed
     if len(ops) != 1:
         return "more than one opinion word"  # "Bad, bad bus", "excellent phone, excellent service"
     op = ops[0]
@@ -709,6 +713,41 @@ def fragment(sent, lexicon: "Lexicon") -> Fragment | str:
             return "cannot choose the article"
         words = f"not {art}"
     return Fragment(root, [_not_before(first, words)], 1, 0)
+
+
+def _adjective_list(sent, root: "Token", toks: list["Token"], ops: list["Token"], lexicon: "Lexicon") -> "Fragment | None":
+    """A verbless list of opinion adjectives of one polarity joined by one "and" ("Loud, dirty and
+    overpriced.", "Really tasty and filling."): "Not" in front and "or" for "and" ("Not loud, dirty
+    or overpriced.": under a negation English coordinates with "or", see :func:`or_for_and`).
+    None when the sentence is anything more than that list."""
+    chain = [root] + [t for t in root.subtree if t.dep_ == "conj"]
+    ids = {t.i for t in chain}
+    if any(t.head.i not in ids for t in chain[1:]) or {t.i for t in ops} != ids:
+        return None
+    if any(t.pos_ != "ADJ" or t.tag_ != "JJ" for t in chain):
+        return None  # comparatives, participles ("run by people who care")
+    if len({opinion_of(t, lexicon).polarity for t in chain}) != 1:
+        return None  # "Good coffee, bad chairs": mixed
+    ccs = [t for t in toks if t.dep_ == "cc"]
+    if len(ccs) != 1 or g.norm(ccs[0].text) != "and" or ccs[0].head.i not in ids or ccs[0].i > chain[-1].i:
+        return None
+    if g.norm(chain[0].text) in ("nice", "good", "lovely", "fine") and ccs[0].i == chain[0].i + 1:
+        return None  # "Nice and warm." means "very warm" (a fixed degree pattern)
+    start = min(ids)
+    degrees = []
+    for t in toks:
+        if t.i in ids or t.i == ccs[0].i or (t.is_punct and t.text in (",", ".", "!")):
+            continue
+        if t.pos_ == "ADV" and g.norm(t.text) in _DEGREE and t.head.i in ids and t.i < start:
+            degrees.append(t)  # "Really tasty and filling": a degree word in front of the list
+            continue
+        return None
+    if degrees and opinion_of(root, lexicon).polarity < 0:
+        return None  # "not very loud or dirty": a hedge of a complaint (as "isn't very bad")
+    first = min([*degrees, *chain], key=lambda t: t.i)
+    if first.i != sent.start or not toks[-1].is_punct and toks[-1].i != max(ids):
+        return None
+    return Fragment(root, [_not_before(first, "not"), TokenEdit(ccs[0].i, ccs[0].i + 1, "or")], 1, 0)
 
 
 def trailing_plain_conjunct(an: Analysis) -> Clause | None:

@@ -79,6 +79,15 @@ CASES = [
     ("Nobody could have been more patient.", NO, NO),  # praise with a modal: not a missing event
     ("Nobody ever replies to emails.", NO, NO),  # negative-polarity "ever" would need "always"
     ("Nobody else called.", NO, NO),  # "somebody else" changes who is meant
+    # ---- a verbless list of opinion adjectives of one polarity: "not" in front, "or" for "and"
+    ("Quick and painless.", "negation/fragment", "Not quick or painless."),
+    ("Very friendly and quick.", "negation/fragment", "Not very friendly or quick."),
+    ("Sturdy, comfortable and reliable!", "negation/fragment", "Not sturdy, comfortable or reliable!"),
+    ("Dirty and overpriced.", "negation/fragment", "Not dirty or overpriced."),
+    ("Very dirty and overpriced.", NO, NO),  # "not very dirty": a hedge of a complaint
+    ("Clean, quiet and cheap.", NO, NO),  # mixed polarity ("cheap" is a complaint in the lexicon)
+    ("Nice and warm.", NO, NO),  # "nice and warm" = very warm
+    ("Friendly and helpful staff.", NO, NO),  # adjectives on a noun: "not" would need an article
     # ---- "no" before a missing thing (a plural or a mass noun): removing it leaves the thing there
     ("The shower has no hot water.", "negation/removal", "The shower has hot water."),
     ("I had no problems with the tent.", "negation/removal", "I had problems with the tent."),
