@@ -3,35 +3,62 @@
 Rules:
 
 ``reorder/coordination`` (hold)
-    Rotate the conjuncts of an "and"/"or" coordination of single adjectives or manner adverbs
-    (each optionally after its degree adverbs): "light, warm and cheap" -> "warm, cheap and
-    light". Nouns, verb phrases and prepositional phrases are not rotated (their modifiers
-    re-attach: "corned beef on rye and soup"), nor conjuncts glued to a hyphen, slash, hashtag or
-    link ("s-video"), negated scopes ("no X and no Y"), identity words ("same or similar"),
-    correlatives ("either ... or") and loose list items with colons or dashes. Commas and the coordinator stay where they are, so an Oxford
-    comma is kept when the text has one. "but"/"yet" coordinations are never reordered: the
-    second conjunct carries the weight of a contrast ("cheap but sturdy" praises, "sturdy but
-    cheap" warns), so the order is part of what is said. Also skipped: fixed binomials
-    ("pros and cons", "nice and warm"), numbers ("two or three"), personal pronouns ("my wife
-    and I"), conjuncts that refer back with a pronoun ("the tent and its poles"), noun phrases
-    joined by "or" (verb agreement follows the nearer one), and verb phrases that are not in the
-    present tense or carry an auxiliary (past-tense "and" tells a sequence: "pitched it and slept
-    in it").
+    Rotate the conjuncts of an "and"/"or" coordination of adjectives, manner adverbs or noun
+    phrases: "light, warm and cheap" -> "warm, cheap and light", "friendly staff and clean
+    rooms" -> "clean rooms and friendly staff". A conjunct is one word after its degree adverbs
+    ("very light"), a noun after its own article, possessive, adjectives or compounds ("the calm
+    water"), or an adjective with its own complement ("patient with the kids", "happy to help").
+    When only the last conjunct has a complement it may belong to all of them ("quick and easy to
+    use"), so it keeps its place and the plain ones before it rotate ("fun, informative and great
+    for kids" -> "informative, fun and great for kids"); with one plain conjunct before it, or a
+    complement on an earlier conjunct only, nothing moves. Noun phrases: only "and"; each must
+    have its own article or adjective (bare pairs are often fixed: "fish and chips"; "great coffee
+    and cake" may share "great"), an article on the first must be on all ("the poles and stakes"
+    shares it), no names, numbers, relative clauses or "there is" (the verb agrees with the first
+    item). Not rotated: verb and prepositional phrases (their modifiers re-attach: "corned beef on
+    rye and soup"), conjuncts glued to a hyphen, slash, hashtag or link ("s-video"), a negation
+    over the whole coordination ("not tight and secure", "no cables and batteries"; "no X and no
+    Y" moves), identity words ("same or similar"), correlatives ("either ... or"), loose list
+    items with colons or dashes, fixed binomials ("pros and cons", "nice and warm"), and
+    conjuncts that refer back with a pronoun ("the tent and its poles"). Commas and the
+    coordinator stay where they are, so an Oxford comma is kept when the text has one.
+    "but"/"yet" coordinations are never reordered: the second conjunct carries the weight of a
+    contrast ("cheap but sturdy" praises, "sturdy but cheap" warns).
 ``reorder/adverbial`` (hold)
-    Move a time, place, condition or frame adverbial of the main verb from the end to the front
-    with a comma ("... quickly in the morning." -> "In the morning, ... quickly."); never to the
-    end, where it may attach to the last noun ("... a gift after less than 24 hours"). Only a clean
-    prepositional phrase or adverb with no verb, coordination or approximation inside ("every
-    time it freezes", "every 10 minutes or so"), no "for" durations, not under verbs of duration
-    or placement, not in sentences with mentions, hashtags, links or colons. Skipped: questions; sentences with negation or focus words
-    (not, never, only, even, just, also, too), whose scope the move would change; phrases that
-    are arguments rather than adjuncts (directional "to the campground", the predicate of
-    "is in the garage", durations to completion "in two hours"); and sentence adverbs whose move
-    to the end reads oddly ("Unfortunately, ..." stays; "..., honestly." may move to the front).
+    Move an adverbial of the main clause across it. End -> front, with a comma ("The boat left
+    after two hours." -> "After two hours, the boat left."); front -> end, the comma dropped, when
+    the clause does not end in a noun the phrase could attach to ("On the first night, we ate the
+    fish" stays). Kinds: prepositional phrases of time, place, condition, reason and frame ("on
+    the first night", "since the refit", "because of the fog", "thanks to the crew", "in my
+    experience", "for the price"; after a predicate adjective or evaluative noun also "for two
+    people", "for families", "for breakfast"), time noun phrases ("every week", "last night"),
+    time and frequency adverbs ("yesterday", "lately", "sometimes"; "now" only to the front),
+    sentence adverbs ("honestly", "unfortunately", "overall"; they keep a comma at the end), and
+    adverbial clauses of time, condition and reason ("when we arrived", "if you like seafood",
+    "because the staff are lovely"). A phrase ending the clause may hang from the verb, from a
+    predicate adjective ("is perfect for two people") or from the verb after "keep"/"start"
+    ("keeps crashing since the update"). Only clean phrases: no coordination, approximation
+    ("about two weeks", "or so"), clause inside a phrase, number in a time noun phrase ("two
+    days"), "on time"; no "for" durations or beneficiaries ("waited for an hour", "bought it for
+    my son"), no "value for money", not under verbs of duration, not a place with verbs of
+    placement or motion ("stayed at the harbour"), not the predicate itself ("is in the garage").
+    Skipped: questions, imperatives, sentences with contrast words, mentions, hashtags, links or
+    colons, coordinated verbs (the phrase would cover one conjunct only); sentences with focus
+    words (only, even, just, also, too), and with negation unless the phrase is outside its
+    scope (sentence adverbs, "since ...", "in my experience", "for the price"); a clause that
+    would put a pronoun of the main clause before a noun it may refer to ("It crashes whenever I
+    open the map", "When the skipper arrived, she apologised").
 ``reorder/clauses`` (hold)
-    Swap two independent clauses joined by "and" when both are states (linking verbs such as be,
-    seem, feel, or stative verbs such as have, weigh, fit), neither refers to the other with a
-    pronoun, and nothing marks a sequence or addition (then, later, so, also, too).
+    Swap two independent clauses joined by "and" when neither tells a story or a cause: both
+    are states (linking or stative verbs such as be, seem, feel, have, love, in any tense, also
+    with a modal or the perfect; present adjectival passives), or one is a state and the other
+    an event in the present (simple, perfect, progressive or after a modal) whose subjects are
+    not "I", "we" or "you" ("the wifi drops and I'm stuck" is a cause). Skipped: a pronoun that
+    may refer across ("the chair is sturdy and my dog loves it"; demonstrative articles such as
+    "this cafe" point outside and are allowed), a noun mentioned in both clauses ("has a balcony
+    and the balcony is huge"), sequence or addition words (then, later, so, also, too), commas
+    inside a clause. A sentence adverbial or adverbial clause before the first subject ("Honestly,
+    ...", "Since the refit, ...") covers both clauses and stays in front.
 ``reorder/shuffle`` (none, diagnostic)
     A seeded random permutation of the content words (nouns, verbs, adjectives, adverbs,
     numbers) of each sentence; function words, negators and punctuation keep their places.
@@ -96,6 +123,8 @@ TIME_NOUNS = frozenset(
     "year years weekend weekends season seasons winter winters summer summers spring autumn fall "
     "minute minutes hour hours second seconds time times trip trips hike hikes outing outings vacation "
     "holiday holidays use uses wash washes dawn dusk sunrise sunset midnight noon breakfast lunch dinner "
+    "brunch lunchtime lunchtimes weekday weekdays weeknight weeknights visit visits stay stays occasion "
+    "occasions arrival "
     "monday tuesday wednesday thursday friday saturday sunday january february march april may june july "
     "august september october november december start beginning end while".split()
 )
@@ -103,13 +132,24 @@ CONDITION_NOUNS = frozenset(
     "rain snow wind winds storm storms cold heat weather conditions sun frost fog humidity downpour dark "
     "darkness drizzle sleet hail mud altitude".split()
 )
-PLACE_NOUNS = frozenset("trail trails campsite campground backcountry mountains summit woods forest desert".split())
-# Prepositions whose phrase is a free adjunct when its noun is of the right kind.
+PLACE_NOUNS = frozenset(
+    "trail trails campsite campground backcountry mountains summit woods forest desert "
+    "cafe café restaurant bar pub lobby reception office pool beach harbour harbor town city centre center "
+    "station airport park garden terrace hotel gym shop store market venue".split()
+)
+PRICE_NOUNS = frozenset({"price", "prices", "money", "cost"})
+PEOPLE_NOUNS = frozenset(
+    "people person couple couples family families kid kids child children group groups beginner beginners "
+    "guest guests visitor visitors adult adults student students".split()
+)
+MEAL_NOUNS = frozenset({"breakfast", "brunch", "lunch", "dinner", "supper"})
+# Prepositions whose phrase is a free adjunct of the main verb when its noun is of the right kind
+# (None: any noun).
 ADJUNCT_PREPS = {
     "in": TIME_NOUNS | CONDITION_NOUNS | PLACE_NOUNS | {"experience", "opinion", "view"},
     "on": TIME_NOUNS | PLACE_NOUNS,
     "at": TIME_NOUNS | PLACE_NOUNS | {"altitude"},
-    "for": TIME_NOUNS | {"price", "money", "cost"},
+    "for": PRICE_NOUNS,  # "for the price"; not durations ("for an hour") or beneficiaries ("for my son")
     "after": None,  # any noun: "after two weeks", "after the first wash"
     "before": None,
     "during": None,
@@ -120,29 +160,51 @@ ADJUNCT_PREPS = {
     "over": TIME_NOUNS,
     "by": TIME_NOUNS,  # "by the end of the week"
 }
+# The same, hanging from a predicate adjective that ends the clause ("is perfect for two
+# people", "much better since the refit"); prepositions that an adjective selects ("close to",
+# "happy with", "good at") are not listed.
+ADJECTIVE_FRAME_PREPS = {
+    "for": PRICE_NOUNS | PEOPLE_NOUNS | MEAL_NOUNS,
+    "in": TIME_NOUNS | CONDITION_NOUNS | {"experience", "opinion", "view"},
+    "on": TIME_NOUNS,
+    "at": TIME_NOUNS,
+    "after": None,
+    "before": None,
+    "during": None,
+    "since": None,
+    "throughout": None,
+}
+TIME_PREPS = frozenset({"after", "before", "during", "since", "until", "till", "throughout", "within", "over"})
 TIME_UNITS = frozenset(
     "second seconds minute minutes hour hours day days week weeks month months year years afternoon "
     "morning evening night weekend".split()
 )
 DURATION_VERBS = frozenset({"last", "take", "run", "wait", "cost", "weigh", "hold"})
-TIME_DETS = frozenset({"every", "each", "last", "this", "next", "that", "all", "one"})
+TIME_DETS = frozenset({"every", "each", "last", "this", "next", "that", "all", "one", "most", "some", "these"})
 TIME_ADVERBS = frozenset(
-    "yesterday today tonight recently lately nowadays eventually later afterwards overnight".split()
+    "yesterday today tonight recently lately nowadays eventually later afterwards afterward overnight".split()
 )
+FREQUENCY_ADVERBS = frozenset({"sometimes", "occasionally"})
+# May move from the end to the front, not back: a "Now," that opens a sentence may be a discourse
+# marker ("Now, about the price ...").
+FRONTABLE_ONLY = frozenset({"now"})
 STANCE_ADVERBS = frozenset(
     "honestly frankly personally overall luckily fortunately unfortunately thankfully sadly surprisingly "
-    "admittedly ultimately basically generally".split()
+    "admittedly ultimately basically generally apparently hopefully truthfully".split()
 )
+# Adverbial clauses of time, condition and reason that may stand before or after the main clause.
+CLAUSE_MARKERS = frozenset({"when", "whenever", "if", "because", "once", "after", "before", "since", "until", "unless"})
 ARGUMENT_VERBS = frozenset(  # verbs whose place phrase is an argument ("left it in the car")
     "put leave keep store place hang set stand sit lie live go come get arrive drive walk take bring "
-    "carry fit pack move send ship return stay remain".split()
+    "carry fit pack move send ship return stay remain work wait sleep eat".split()
 )
 CONTRAST = frozenset({"but", "yet", "although", "though", "while", "whereas", "however"})
-# Coordinations that may be rotated: single adjectives and adverbs ("light and warm"); nouns,
-# verbs and prepositional phrases carry modifiers that re-attach to the wrong conjunct ("corned
-# beef on rye and soup").
-SAFE_KINDS = frozenset({"adj", "adv"})
-MOVE_TO_END = False
+CATENATIVES = frozenset({"keep", "start", "begin", "stop", "continue"})  # "keeps crashing"
+DEMONSTRATIVES = frozenset({"this", "that", "these", "those"})
+# Coordinations that may be rotated: adjectives, manner adverbs and noun phrases with their own
+# article or adjective; verb and prepositional phrases are not (their modifiers re-attach to the
+# wrong conjunct: "corned beef on rye and soup").
+SAFE_KINDS = frozenset({"adj", "adv", "np"})
 NOT_SCALAR = frozenset({"same", "similar", "other", "different", "next", "last", "first", "only", "own", "such"})
 CONTENT_POS = frozenset({"NOUN", "PROPN", "VERB", "ADJ", "ADV", "NUM"})
 
@@ -219,7 +281,7 @@ def _conjuncts(head: "Token") -> list["Token"]:
 
 def _conjunct_span(tok: "Token", kind: str, others: set[int]) -> tuple[int, int] | None:
     """Token range of one conjunct: its subtree without the other conjuncts, coordinators and
-    edge punctuation; for a verb phrase, from the verb on (the subject is shared)."""
+    edge punctuation (for an adjective, without the noun's article)."""
     skip: set[int] = set()
     for c in tok.children:
         if c.i in others or c.dep_ in ("cc", "preconj", "conj"):
@@ -227,8 +289,6 @@ def _conjunct_span(tok: "Token", kind: str, others: set[int]) -> tuple[int, int]
         elif kind in ("adj", "adv") and c.dep_ in ("det", "poss", "nummod"):
             skip.update(t.i for t in c.subtree)  # "A light and warm bag": the article is the noun's
     idx = sorted(t.i for t in tok.subtree if t.i not in skip)
-    if kind == "vp":
-        idx = [i for i in idx if i >= tok.i]
     while idx and (tok.doc[idx[0]].is_punct):
         idx.pop(0)
     while idx and (tok.doc[idx[-1]].is_punct):
@@ -237,11 +297,74 @@ def _conjunct_span(tok: "Token", kind: str, others: set[int]) -> tuple[int, int]
         return None
     if any(tok.doc[i].is_punct and tok.doc[i].text not in ("-", "'") for i in idx):
         return None  # "warm, windproof and packable" parsed with "warm, windproof" as one conjunct
-    if kind in ("adj", "adv") and any(
-        c.i > tok.i and c.i in idx and c.dep_ not in ("xcomp", "advmod", "cc", "punct") for c in tok.children
-    ):
-        return None  # "warm and dry all day": "all day" belongs to the verb, not to "dry"
     return idx[0], idx[-1] + 1
+
+
+def _degree(t: "Token", head: "Token") -> bool:
+    """A bare degree adverb of ``head`` before it ("very", "really")."""
+    return t.dep_ == "advmod" and t.head.i == head.i and t.i < head.i and not list(t.children)
+
+
+def _conjunct_shape(doc: "Doc", a: int, b: int, head: "Token", kind: str) -> str | None:
+    """"plain" (the word after its own premodifiers: "very light", "the friendly staff"),
+    "complement" (an adjective with its own prepositional or infinitive complement: "close to the
+    beach", "happy to help"; a noun with a prepositional modifier: "a view of the bay"), or None
+    when the conjunct is anything else."""
+    for i in range(a, b):
+        t = tokens(doc)[i]
+        if t.text[:1] in "#@" or t.like_url or any(ch in t.text for ch in "-/_#@"):
+            return None  # glued hyphen, slash, hashtag or link ("s-video", "#map", "a/b")
+    if a > 0 and not tokens(doc)[a - 1].whitespace_ and tokens(doc)[a - 1].text in ("-", "/", "#", "@", "&", "+"):
+        return None
+    if b < len(doc) and not tokens(doc)[b - 1].whitespace_ and tokens(doc)[b].text in ("-", "/", "&", "+"):
+        return None
+    for c in head.children:  # premodifiers
+        if not (a <= c.i < head.i):
+            continue
+        if kind in ("adj", "adv"):
+            if not _degree(c, head):
+                return None
+        elif c.dep_ not in ("det", "poss", "amod", "compound") or any(
+            t.pos_ == "NUM" or t.like_num or t.dep_ not in ("det", "poss", "amod", "compound", "advmod", "case")
+            for t in c.subtree
+        ):
+            return None  # "the really friendly staff", "great customer service"; not "two pools"
+    post = [c for c in head.children if c.i > head.i and a <= c.i < b]
+    if not post:
+        return "plain"
+    if kind == "adv":
+        return None
+    if kind == "adj" and all(c.lower_ == "enough" and not list(c.children) for c in post):
+        return "plain"  # "big enough"
+    for c in post:
+        if c.dep_ == "advmod" and c.lower_ == "enough":
+            continue
+        if c.dep_ not in (("prep", "xcomp") if kind == "adj" else ("prep",)):
+            return None  # relative clauses and the like: "the pool that opened last year"
+        if c.dep_ == "prep" and c.lower_ in TIME_PREPS:
+            return None  # "helpful during our stay": an adjunct of the clause, which may cover every conjunct
+        sub = list(c.subtree)
+        if any(t.dep_ in ("cc", "conj", "relcl", "acl", "advcl", "mark", "ccomp") or t.lower_ in NEGATORS
+               or t.dep_ == "neg" for t in sub):
+            return None
+        if c.dep_ == "prep" and any(t.pos_ in ("VERB", "AUX") for t in sub):
+            return None  # "keen on booking again": a clause inside
+    return "complement"
+
+
+def _rotation(shapes: list[str]) -> list[int] | None:
+    """The new order of the conjuncts, or None. Rotate by one (A, B, C -> B, C, A) when every
+    conjunct is plain or every one has its own complement. A complement on the last conjunct
+    alone may belong to all of them ("quick and easy to use"), so it keeps its place and the
+    plain ones before it rotate ("clean, quiet and close to the beach" -> "quiet, clean and close
+    to the beach"); with only one plain conjunct before it, the pair is skipped. A complement on
+    an earlier conjunct only would land last, where it may be read as shared: skipped."""
+    n = len(shapes)
+    if len(set(shapes)) == 1:
+        return list(range(1, n)) + [0]
+    if shapes[-1] == "complement" and all(s == "plain" for s in shapes[:-1]) and n >= 3:
+        return list(range(1, n - 1)) + [0, n - 1]
+    return None
 
 
 def _coordination(sent: "Span", ctx: Context) -> Iterator[Candidate]:
@@ -249,6 +372,7 @@ def _coordination(sent: "Span", ctx: Context) -> Iterator[Candidate]:
     lex = ctx.lexicon
     # heads with a "conj" child, found in one pass over the tokens (not a scan of every token's children)
     conj_heads = sorted({t.head.i for t in sent if t.dep_ == "conj" and t.head.i != t.i})
+    loose = any(t.text in (":", "-", "--", "(", ")") or t.lower_ in ("either", "neither", "both", "whether") for t in sent)
     for hi in conj_heads:
         head = tokens(doc)[hi]
         if head.dep_ == "conj" or not (sent.start <= hi < sent.end):
@@ -261,9 +385,13 @@ def _coordination(sent: "Span", ctx: Context) -> Iterator[Candidate]:
             continue
         kind = kinds.pop()
         if kind not in SAFE_KINDS:
-            continue  # noun, verb and prepositional conjuncts carry modifiers that re-attach
+            continue  # verb and prepositional conjuncts carry modifiers that re-attach
+        if kind == "np" and any(t.pos_ != "NOUN" for t in conj):
+            continue  # names ("Mara and Tobin") and adjectives the tagger took for nouns
         if kind in ("adj", "adv") and head.dep_ in ("pobj", "dobj", "nsubj", "nsubjpass", "compound"):
             continue  # "reliable in the cold and easy to light": "cold" is not coordinated with "easy"
+        if kind == "np" and head.dep_ == "compound":
+            continue  # "the fish and chip shop"
         ccs = [c for t in conj for c in t.children if c.dep_ == "cc"]
         if len(ccs) != 1 or ccs[0].lower_ not in COORDINATORS.get(kind, DEFAULT_COORDINATORS):
             continue
@@ -283,27 +411,31 @@ def _coordination(sent: "Span", ctx: Context) -> Iterator[Candidate]:
             continue  # the coordinator must come right before the last conjunct
         after = spans[-1][1]
         if kind in ("adj", "adv") and after < sent.end and tokens(doc)[after].lower_ == "to" and tokens(doc)[after].head.i not in ids:
-            continue  # "dark, stuffy and hard to move around in": the infinitive goes with the last one
-        if not all(_plain_conjunct(doc, a, b, t) for (a, b), t in zip(spans, conj)):
+            continue  # "dark, stuffy and hard to move around in" misparsed: the infinitive goes with the last one
+        shapes = [_conjunct_shape(doc, a, b, t, kind) for (a, b), t in zip(spans, conj)]
+        if None in shapes:
             continue
-        if any(t.text in (":", "-", "--", "(", ")") or t.lower_ in ("either", "neither", "both", "whether") for t in sent):
+        order = _rotation(shapes)  # type: ignore[arg-type]
+        if order is None:
+            continue
+        if loose:
             continue  # loose list items ("pros: size - small and ..."), correlatives ("either ... or")
         if any(t.lower_ in NOT_SCALAR for t in conj):
             continue  # "the same or similar problems": identity words, not qualities
         if kind == "adv" and any(not (t.lower_.endswith("ly") or lex.lookup(t.lower_, "ADV")) or t.lower_ in FOCUS_WORDS for t in conj):
             continue  # "configured properly or just isn't": only manner adverbs
-        if any(g.lower_ in NEGATORS or any(c.lower_ in NEGATORS or c.dep_ == "neg" for c in g.children)
-               for g in {head, head.head}):
-            continue  # "no X and no Y needed": the negation's scope changes with the order
+        if _negation_shared(head, conj):
+            continue
         toks = [doc[a:b] for a, b in spans]
         texts = [s.text.lower() for s in toks]
         if len(set(texts)) != len(texts):
             continue
         if not _coordination_ok(kind, conj, toks, texts, lex):
             continue
-        order = list(range(1, len(spans))) + [0]  # rotate by one: A, B, C -> B, C, A
         edits = []
         for pos, src in enumerate(order):
+            if pos == src:
+                continue
             a, b = spans[pos]
             sa, sb = spans[src]
             initial = a == sent.start
@@ -311,118 +443,146 @@ def _coordination(sent: "Span", ctx: Context) -> Iterator[Candidate]:
             edits.append(TokenEdit(a, b, text))
         # keep "a"/"an" in agreement with the new first word ("an easy and quick" -> "a quick and easy")
         a0 = spans[0][0]
-        if a0 > sent.start and tokens(doc)[a0 - 1].lower_ in ("a", "an") and tokens(doc)[a0 - 1].tag_ == "DT":
+        if kind == "adj" and a0 > sent.start and tokens(doc)[a0 - 1].lower_ in ("a", "an") and tokens(doc)[a0 - 1].tag_ == "DT":
             art = tokens(doc)[a0 - 1]
             new_art = match_article(indefinite_article(doc[spans[order[0]][0]].text), art.text)
             if new_art != art.text:
                 edits.insert(0, TokenEdit(art.i, art.i + 1, new_art))
         yield Candidate(
             "reorder/coordination", RULES["reorder/coordination"], tuple(edits),
-            {"kind": kind, "conjuncts": len(spans), "coordinator": ccs[0].lower_},
+            {"kind": kind, "conjuncts": len(spans), "coordinator": ccs[0].lower_,
+             "fixed_last": order[-1] == len(order) - 1},
         )
 
 
-def _plain_conjunct(doc: "Doc", a: int, b: int, head: "Token") -> bool:
-    """A conjunct that is one word, or one word after its degree adverbs ("very light"), with no
-    glued hyphen, slash, hashtag or link on either side ("s-video", "#map", "a/b")."""
-    for i in range(a, b):
-        t = tokens(doc)[i]
-        if i != head.i and not (t.dep_ == "advmod" and t.head.i == head.i and i < head.i and not list(t.children)):
-            return False
-        if t.text[:1] in "#@" or t.like_url or any(ch in t.text for ch in "-/_#@"):
-            return False
-    if a > 0 and not tokens(doc)[a - 1].whitespace_ and tokens(doc)[a - 1].text in ("-", "/", "#", "@", "&", "+"):
-        return False
-    if b < len(doc) and not tokens(doc)[b - 1].whitespace_ and tokens(doc)[b].text in ("-", "/", "&", "+"):
-        return False
-    return True
+def _has_negator(tok: "Token") -> bool:
+    return tok.lower_ in NEGATORS or any(c.lower_ in NEGATORS or c.dep_ == "neg" for c in tok.children)
+
+
+def _negation_shared(head: "Token", conj: list["Token"]) -> bool:
+    """A negation whose scope the order would change: on the word that governs the coordination
+    ("is not tight and secure"), or on the first conjunct only ("no cables and batteries").
+    Every conjunct with its own ("no cables and no batteries") is free to move."""
+    if _has_negator(head.head) and head.head.i != head.i:
+        return True
+    negated = [_has_negator(t) for t in conj]
+    return negated[0] and not all(negated)
 
 
 def _coordination_ok(kind: str, conj: list["Token"], toks: list["Span"], texts: list[str], lex) -> bool:
-    if len(toks) == 2 and (texts[0], texts[1]) in BINOMIALS:
-        return False
     if kind == "np":
-        # "The poles and stakes": a shared determiner must not become one conjunct's own
-        determined = {any(c.dep_ in ("det", "poss") for c in t.children) for t in conj}
-        if len(determined) != 1:
+        heads = tuple(lemma(t).lower() for t in conj)
+        if len(heads) == 2 and (heads in BINOMIALS or (conj[0].lower_, conj[1].lower_) in BINOMIALS):
             return False
-        # an adjective the tagger took for a noun ("a light and warm bag") is not a noun phrase
+        det = [any(c.dep_ in ("det", "poss") for c in t.children) for t in conj]
+        mod = [any(c.dep_ == "amod" for c in t.children) for t in conj]
+        if det[0] and not all(det):
+            return False  # "the poles and stakes": a shared determiner must not become one conjunct's own
+        if not all(d or m for d, m in zip(det, mod)):
+            return False  # "great coffee and cake": the adjective may cover both; bare pairs are often fixed ("fish and chips")
         if any(lex.lookup(t.lower_, "ADJ") is not None and lex.lookup(t.lower_, "NOUN") is None for t in conj):
-            return False
+            return False  # an adjective the tagger took for a noun ("a light and warm bag")
+        verb = conj[0].head
+        if conj[0].dep_ in ("attr", "nsubj") and any(c.dep_ == "expl" for c in verb.children):
+            return False  # "there is a pool and two saunas": the verb agrees with the first conjunct
+    elif len(toks) == 2 and (texts[0], texts[1]) in BINOMIALS:
+        return False
     if texts[0] in HENDIADYS and kind == "adj":
         return False
     for k, span in enumerate(toks):
         for t in span:
             if t.pos_ == "NUM" or t.like_num:
                 return False
-            if t.pos_ == "PRON" and t.lower_ in ("i", "me", "you", "we", "us", "he", "she", "him", "her", "they", "them", "it"):
-                if len(span) == 1:
-                    return False  # "my wife and I", "you and me"
             if k > 0 and t.lower_ in ANAPHORS:
                 return False  # "the tent and its poles"
             if t.lower_ in SEQUENCE_WORDS:
                 return False
-    if kind == "vp":
-        if any(v.tag_ not in ("VBZ", "VBP") for v in conj):
-            return False  # present tense only: past-tense "and" tells a sequence
-        for v in conj[1:]:
-            if any(c.dep_ in ("aux", "auxpass", "neg", "nsubj", "nsubjpass", "expl") for c in v.children):
-                return False  # a later conjunct with its own subject is a clause (reorder/clauses)
-        first = conj[0]
-        subj_end = _subject_end(first)
-        for c in first.children:
-            if c.dep_ in ("aux", "auxpass", "neg"):
-                return False  # "doesn't leak and packs small": the auxiliary is shared
-            if subj_end < c.i < first.i:
-                return False  # "It quickly boils water and packs small": "quickly" would change scope
     return True
-
-
-def _subject_end(verb: "Token") -> int:
-    for c in verb.children:
-        if c.dep_ in ("nsubj", "nsubjpass"):
-            return c.right_edge.i
-    return sent_of(verb).start - 1
 
 
 # --- adverbials ------------------------------------------------------------------------------
 
 
-def _adjunct(tok: "Token", root: "Token") -> bool:
-    """Is ``tok`` (a dependent of the main verb) a free time/place/condition/frame adjunct?"""
+def _third_person(toks) -> bool:
+    return any(t.lower_ in ANAPHORS and (t.pos_ == "PRON" or t.dep_ in ("poss", "nsubj", "dobj", "pobj", "nsubjpass")) for t in toks)
+
+
+def _adjunct(tok: "Token", root: "Token", host: "Token") -> bool:
+    """Is ``tok`` (a dependent of the main verb, or of the predicate adjective ``host``) a free
+    time, frequency, place, condition, reason or frame adjunct?"""
     if any(t.lower_ in ANAPHORS or t.pos_ == "PRON" and t.lower_ not in ("my", "our", "your") for t in tok.subtree):
         return False
+    on_adjective = host.i != root.i
     if tok.dep_ == "prep":
-        allowed = ADJUNCT_PREPS.get(tok.lower_, ())
+        word = tok.lower_
+        if word in ("because", "due") and tok.left_edge.i == tok.i:
+            # "because of the fog", "due to the fog": the object hangs from the preposition or from "of" / "to"
+            return _reason_object(tok, "of" if word == "because" else "to")
+        allowed = (ADJECTIVE_FRAME_PREPS if on_adjective else ADJUNCT_PREPS).get(word, ())
         if allowed == () or tok.left_edge.i != tok.i:
             return False  # "held up well after three years": "well after" is not one phrase
-        if tok.lower_ in ("until", "till", "to", "through") and any(
+        if word in ("until", "till", "to", "through") and any(
             c.dep_ == "prep" and c.lower_ == "from" for c in root.children
         ):
             return False  # "from midnight until dawn" is one span of time
-        if lemma(root) in DURATION_VERBS and tok.lower_ in ("for", "in", "over", "within"):
+        if lemma(root) in DURATION_VERBS and word in ("for", "in", "over", "within"):
             return False  # "will last for years": the duration is the verb's complement
         objs = [c for c in tok.children if c.dep_ == "pobj"]
-        if len(objs) != 1 or objs[0].pos_ not in ("NOUN", "PROPN"):
+        if len(objs) != 1 or objs[0].pos_ not in ("NOUN", "PROPN") or len(list(tok.children)) != 1:
             return False
         noun = objs[0]
-        if tok.lower_ == "in" and (
+        if word == "in" and (
             any(c.like_num for c in noun.subtree)
             or noun.lower_ in TIME_UNITS and not any(c.lower_ in ("the", "this", "that") for c in noun.children)
         ):
             return False  # "charges in two hours", "folds flat in seconds": time to completion, not a frame
         if allowed is not None and noun.lower_ not in allowed:
             return False
+        if word in ("on", "in") and noun.lower_ == "time" and not list(noun.children):
+            return False  # "arrived on time", "in time": punctuality, not a time frame
         if noun.lower_ in PLACE_NOUNS and lemma(root) in ARGUMENT_VERBS:
-            return False
+            return False  # "we stayed at the harbour": the place is the verb's argument
         return True
+    if on_adjective:
+        return False
+    if tok.dep_ == "npadvmod" and tok.lower_ == "thanks" and tok.left_edge.i == tok.i:
+        return _reason_object(tok, "to")  # "thanks to the crew"
     if tok.dep_ == "npadvmod" and tok.lower_ in TIME_ADVERBS and not list(tok.children):
         return True  # "yesterday", tagged as a noun
     if tok.dep_ == "npadvmod" and tok.pos_ == "NOUN" and tok.lower_ in TIME_NOUNS:
-        return any(c.lower_ in TIME_DETS or c.like_num for c in tok.children)
+        if lemma(root) in DURATION_VERBS:
+            return False  # "it took all day"
+        kids = list(tok.children)
+        return len(kids) == 1 and kids[0].lower_ in TIME_DETS and kids[0].dep_ in ("det", "amod")  # "every week", "last night"
     if tok.dep_ == "advmod" and tok.pos_ == "ADV" and not list(tok.children):
-        return tok.lower_ in TIME_ADVERBS or tok.lower_ in STANCE_ADVERBS
+        return tok.lower_ in TIME_ADVERBS | FREQUENCY_ADVERBS | STANCE_ADVERBS | FRONTABLE_ONLY
     return False
+
+
+def _reason_object(tok: "Token", link_word: str) -> bool:
+    """``tok`` + ``link_word`` + one noun phrase and nothing else ("because of the fog")."""
+    kids = list(tok.children)
+    links = [c for c in kids if c.dep_ in ("pcomp", "prep") and c.lower_ == link_word and c.i == tok.i + 1]
+    if len(links) != 1:
+        return False
+    rest = [c for c in kids if c.i != links[0].i] + list(links[0].children)
+    return len(rest) == 1 and rest[0].dep_ == "pobj" and rest[0].pos_ == "NOUN"
+
+
+def _clause_adjunct(tok: "Token", root: "Token") -> bool:
+    """An adverbial clause of time, condition or reason that may stand at either end ("when we
+    arrived", "if you like seafood", "because the staff are lovely")."""
+    if tok.dep_ != "advcl" or tok.pos_ not in ("VERB", "AUX"):
+        return False
+    sub = list(tok.subtree)
+    first = sub[0]
+    if first.lower_ not in CLAUSE_MARKERS or first.head.i != tok.i or first.dep_ not in ("mark", "advmod"):
+        return False
+    if not any(c.dep_ in ("nsubj", "nsubjpass", "expl") for c in tok.children):
+        return False  # "after waiting an hour": the subject is the main clause's
+    if len(sub) > 14:
+        return False
+    return not any(t.is_punct and t.text not in ("'", "-") or t.dep_ in ("cc", "conj") or t.text[:1] in "@#" for t in sub)
 
 
 def _adverbial(sent: "Span", ctx: Context) -> Iterator[Candidate]:
@@ -430,8 +590,15 @@ def _adverbial(sent: "Span", ctx: Context) -> Iterator[Candidate]:
     root = sent.root
     if _is_question(sent) or root.pos_ not in ("VERB", "AUX"):
         return
-    if any(t.lower_ in NEGATORS or t.dep_ == "neg" or t.lower_ in FOCUS_WORDS or (t.lower_ in CONTRAST and t.pos_ != "NOUN") for t in sent):
-        return  # scope: "didn't leak in the rain"; attachment: "stiff at first but comfortable after a week"
+    if any(t.lower_ in CONTRAST and t.pos_ != "NOUN" for t in sent):
+        return  # attachment: "stiff at first but comfortable after a week"
+    if any(t.text[:1] in "@#" or t.like_url or t.text in (":", ";") for t in sent):
+        return  # tweets with mentions, hashtags or links; lists with colons
+    # negation and focus words: the move would change their scope ("didn't leak in the rain",
+    # "only leaks in heavy rain"); a sentence adverb set off by a comma is outside any scope
+    negated = any(t.lower_ in NEGATORS or t.dep_ == "neg" for t in sent)
+    focused = any(t.lower_ in FOCUS_WORDS and not _degree_too(t) for t in sent)
+    scoped = "focus" if focused else "negation" if negated else ""
     subj = [c for c in root.children if c.dep_ in ("nsubj", "nsubjpass", "expl")]
     if len(subj) != 1:
         return  # imperatives and fragments
@@ -441,67 +608,171 @@ def _adverbial(sent: "Span", ctx: Context) -> Iterator[Candidate]:
     last = _last_word(sent)
     if last < 0:
         return
-    punct_end = last + 1 < sent.end  # the sentence has closing punctuation after its last word
-    # end -> front
+    yield from _to_front(sent, root, subj, last, scoped, ctx.lexicon)
+    yield from _to_end(sent, root, subj, last, scoped)
+
+
+def _degree_too(tok: "Token") -> bool:
+    """"too" before an adjective or adverb ("too loud") is a degree word, not the additive "too"."""
+    return tok.lower_ == "too" and tok.head.pos_ in ("ADJ", "ADV") and tok.head.i == tok.i + 1
+
+
+def _final_phrase(root: "Token", last: int, lex=None) -> tuple["Token", "Token"] | None:
+    """The phrase that ends the clause, with its host: the main verb's last dependent, or the
+    last dependent of a predicate adjective that ends the clause ("is great for the price")."""
     right = [c for c in root.children if c.i > root.i and not c.is_punct]
-    if right:
-        adv = right[-1]
-        if (
-            adv.right_edge.i == last
-            and adv.dep_ in ("prep", "advmod", "npadvmod")
-            and lemma(root) not in DURATION_VERBS | ARGUMENT_VERBS
-            and not (adv.lower_ == "for" and not any(t.lower_ in ("price", "money", "cost") for t in adv.subtree))
-            and not any(t.dep_ in ("cc", "conj") or t.lower_ in ("about", "around", "roughly", "every", "each")
-                        or t.text[:1] in "@#" for t in adv.subtree)
-            and not any(t.text[:1] in "@#" or t.like_url or t.text == ":" for t in sent)
-            and not (adv.dep_ == "npadvmod" and any(t.like_num for t in adv.subtree))
-            and not any(t.pos_ in ("VERB", "AUX") or t.dep_ in ("relcl", "acl", "advcl", "mark") for t in adv.subtree)
-            and _adjunct(adv, root)
-            and subj.left_edge.i == sent.start
-            and not (lemma(root) == "be" and not any(c.dep_ in ("acomp", "attr") for c in root.children))
-            and not (adv.dep_ == "advmod" and adv.lower_ in TIME_ADVERBS and len(right) == 1 and lemma(root) == "be")
-        ):
-            a = adv.left_edge.i
-            prev = tokens(doc)[a - 1]
-            has_comma = prev.text == ","
-            if not (adv.lower_ in STANCE_ADVERBS and not has_comma):  # "works honestly": a manner reading
-                cut = a - 1 if has_comma else a
-                moved = _span_text(doc, a, last + 1, initial=True, was_initial=False)
-                first = tokens(doc)[sent.start]
-                edits = [TokenEdit(sent.start, sent.start, moved + ",")]
-                low = _span_text(doc, sent.start, sent.start + 1, initial=False, was_initial=True)
-                if low != first.text:
-                    edits.append(TokenEdit(sent.start, sent.start + 1, low))
-                edits.append(TokenEdit(cut, last + 1, ""))
-                yield Candidate(
-                    "reorder/adverbial", RULES["reorder/adverbial"], tuple(edits),
-                    {"direction": "to-front", "phrase": doc[a : last + 1].text},
-                )
-    # front -> end: never (at the end the phrase may attach to the last noun: "... a gift after
-    # less than 24 hours")
-    left = [c for c in root.children if c.i < root.i and not c.is_punct] if MOVE_TO_END else []
-    if left and left[0].left_edge.i == sent.start:
-        adv = left[0]
-        b = adv.right_edge.i + 1
-        has_comma = b < len(doc) and tokens(doc)[b].text == ","
-        nxt = b + 1 if has_comma else b
-        if (
-            adv.dep_ in ("prep", "npadvmod", "advmod")
-            and adv.lower_ not in STANCE_ADVERBS
-            and _adjunct(adv, root)
-            and subj.left_edge.i == nxt
-            and (punct_end or sent.end == len(doc))
-        ):
-            moved = _span_text(doc, sent.start, b, initial=False, was_initial=True)
-            edits = [TokenEdit(sent.start, nxt, "")]
-            cap = _span_text(doc, nxt, nxt + 1, initial=True, was_initial=False)
-            if cap != tokens(doc)[nxt].text:
-                edits.append(TokenEdit(nxt, nxt + 1, cap))
-            edits.append(TokenEdit(last + 1, last + 1, moved))
-            yield Candidate(
-                "reorder/adverbial", RULES["reorder/adverbial"], tuple(edits),
-                {"direction": "to-end", "phrase": doc[sent.start : b].text},
-            )
+    if not right or right[-1].right_edge.i != last:
+        return None
+    adv = right[-1]
+    if adv.dep_ == "acomp" and adv.pos_ == "ADJ":
+        tail = [c for c in adv.children if c.i > adv.i and not c.is_punct]
+        if tail and tail[-1].dep_ == "prep" and tail[-1].right_edge.i == last:
+            return tail[-1], adv
+        return None
+    if adv.dep_ == "xcomp" and adv.pos_ == "VERB" and lemma(root) in CATENATIVES:
+        # "keeps crashing since the update": the phrase frames the whole verb chain
+        tail = [c for c in adv.children if c.i > adv.i and not c.is_punct]
+        if tail and tail[-1].dep_ in ("prep", "npadvmod", "advmod") and tail[-1].right_edge.i == last:
+            return tail[-1], adv
+        return None
+    if adv.dep_ == "attr" and adv.pos_ == "NOUN" and lex is not None and any(
+        c.dep_ == "amod" and lex.lookup(c.lower_, "ADJ") is not None for c in adv.children
+    ):
+        # "is a great choice for families": a "for" frame of an evaluative noun, not "value for money"
+        tail = [c for c in adv.children if c.i > adv.i and not c.is_punct]
+        if tail and tail[-1].dep_ == "prep" and tail[-1].lower_ == "for" and tail[-1].right_edge.i == last:
+            objs = [c for c in tail[-1].children if c.dep_ == "pobj"]
+            if len(objs) == 1 and (objs[0].lower_ in PEOPLE_NOUNS or objs[0].lower_ in PRICE_NOUNS and any(
+                c.dep_ in ("det", "poss") for c in objs[0].children
+            )):
+                return tail[-1], adv
+        return None
+    return adv, root
+
+
+def _outside_negation(adv: "Token") -> bool:
+    """Phrases a negation of the clause does not take in its scope, so they may move past it:
+    "since ..." ("hasn't crashed since the update"), a frame of judgement ("in my experience",
+    "for the price")."""
+    if adv.dep_ != "prep":
+        return False
+    objs = [c for c in adv.children if c.dep_ == "pobj"]
+    if adv.lower_ == "since":
+        return True
+    return len(objs) == 1 and (
+        adv.lower_ == "in" and objs[0].lower_ in ("experience", "opinion", "view")
+        or adv.lower_ == "for" and objs[0].lower_ in PRICE_NOUNS
+    )
+
+
+def _to_front(sent: "Span", root: "Token", subj: "Token", last: int, scoped: str, lex) -> Iterator[Candidate]:
+    doc = sent.doc
+    found = _final_phrase(root, last, lex)
+    if found is None or subj.left_edge.i != sent.start:
+        return
+    adv, host = found
+    a = adv.left_edge.i
+    prev = tokens(doc)[a - 1]
+    has_comma = prev.text == ","
+    sub = list(adv.subtree)
+    if adv.dep_ == "advcl":
+        if scoped or not _clause_adjunct(adv, root):
+            return
+        if _third_person(t for t in doc[sent.start : a]) and any(t.pos_ in ("NOUN", "PROPN") for t in sub):
+            return  # "it broke when the kids used the tent": in front, "it" would mean the tent
+        kind = "clause"
+    else:
+        stance = adv.dep_ == "advmod" and adv.lower_ in STANCE_ADVERBS
+        if scoped and not (stance and has_comma) and not (scoped == "negation" and _outside_negation(adv)):
+            return
+        verb = host if host.pos_ == "VERB" else root  # the catenative's complement: "keeps crashing"
+        if adv.dep_ not in ("prep", "advmod", "npadvmod") or not _adjunct(adv, verb, verb if verb is host else host):
+            return
+        if stance and not has_comma and adv.lower_ != "overall":
+            return  # "works honestly": a manner reading
+        if adv.dep_ == "prep" and adv.lower_ == "for" and host.i == root.i and not any(t.lower_ in PRICE_NOUNS for t in sub):
+            return  # "waited for an hour", "bought it for my son": durations and beneficiaries
+        if any(t.dep_ in ("cc", "conj") or t.lower_ in ("about", "around", "roughly", "almost", "nearly") for t in sub):
+            return  # "every 10 minutes or so", "after about two weeks"
+        if adv.dep_ == "npadvmod" and any(t.like_num for t in sub):
+            return  # "two days": a duration or a measure
+        if any(t.pos_ in ("VERB", "AUX") or t.dep_ in ("relcl", "acl", "advcl", "mark") for t in sub):
+            return  # "every time it freezes": a clause inside
+        if lemma(root) == "be" and not any(c.dep_ in ("acomp", "attr") for c in root.children):
+            return  # "the tent is in the garage": the phrase is the predicate
+        if adv.dep_ == "advmod" and adv.lower_ in TIME_ADVERBS and lemma(root) == "be" and host.i == root.i and \
+                len([c for c in root.children if c.i > root.i and not c.is_punct]) == 1:
+            return
+        kind = "stance" if stance else "phrase"
+    cut = a - 1 if has_comma else a
+    moved = _span_text(doc, a, last + 1, initial=True, was_initial=False)
+    first = tokens(doc)[sent.start]
+    edits = [TokenEdit(sent.start, sent.start, moved + ",")]
+    low = _span_text(doc, sent.start, sent.start + 1, initial=False, was_initial=True)
+    if low != first.text:
+        edits.append(TokenEdit(sent.start, sent.start + 1, low))
+    edits.append(TokenEdit(cut, last + 1, ""))
+    yield Candidate(
+        "reorder/adverbial", RULES["reorder/adverbial"], tuple(edits),
+        {"direction": "to-front", "kind": kind, "phrase": doc[a : last + 1].text},
+    )
+
+
+def _to_end(sent: "Span", root: "Token", subj: "Token", last: int, scoped: str) -> Iterator[Candidate]:
+    doc = sent.doc
+    left = [c for c in root.children if c.i < root.i and not c.is_punct]
+    if not left or left[0].left_edge.i != sent.start:
+        return
+    adv = left[0]
+    b = adv.right_edge.i + 1
+    has_comma = b < len(doc) and tokens(doc)[b].text == ","
+    nxt = b + 1 if has_comma else b
+    if subj.left_edge.i != nxt or nxt >= last:
+        return
+    if not (last + 1 < sent.end or sent.end == len(doc)):
+        return  # no closing punctuation to put the phrase before, and more text follows
+    end_tok = tokens(doc)[last]
+    sub = list(adv.subtree)
+    stance = adv.dep_ == "advmod" and adv.lower_ in STANCE_ADVERBS
+    if adv.dep_ == "advcl":
+        if scoped or not _clause_adjunct(adv, root):
+            return
+        if _third_person(t for t in doc[nxt : last + 1]) and any(t.pos_ in ("NOUN", "PROPN") for t in sub):
+            return  # "when the manager arrived, she apologised": at the end, "she" could not be the manager
+        if end_tok.lower_ in TIME_NOUNS:
+            return  # "... the day when we arrived": the clause would read as a relative clause
+        kind = "clause"
+    else:
+        if scoped and not stance and not (scoped == "negation" and _outside_negation(adv)):
+            return
+        if adv.dep_ not in ("prep", "advmod", "npadvmod") or not _adjunct(adv, root, root) or adv.lower_ in FRONTABLE_ONLY:
+            return
+        if adv.dep_ == "prep" and end_tok.pos_ in ("NOUN", "PROPN", "NUM"):
+            return  # at the end the phrase may attach to the last noun ("... the fish on the first night")
+        if adv.dep_ == "prep" and adv.lower_ == "for" and not any(t.lower_ in PRICE_NOUNS for t in sub):
+            return  # "for an hour", "for my son": durations and beneficiaries
+        if any(t.dep_ in ("cc", "conj") or t.lower_ in ("about", "around", "roughly", "almost", "nearly") for t in sub):
+            return
+        if adv.dep_ == "npadvmod" and any(t.like_num for t in sub):
+            return
+        if any(t.pos_ in ("VERB", "AUX") or t.dep_ in ("relcl", "acl", "advcl", "mark") for t in sub):
+            return
+        if lemma(root) == "be" and not any(c.dep_ in ("acomp", "attr") for c in root.children):
+            return
+        kind = "stance" if stance else "phrase"
+    moved = _span_text(doc, sent.start, b, initial=False, was_initial=True)
+    edits = [TokenEdit(sent.start, nxt, "")]
+    cap = _span_text(doc, nxt, nxt + 1, initial=True, was_initial=False)
+    if cap != tokens(doc)[nxt].text:
+        edits.append(TokenEdit(nxt, nxt + 1, cap))
+    if stance:
+        edits.append(TokenEdit(last, last + 1, end_tok.text + ", " + moved))  # "..., honestly."
+    else:
+        edits.append(TokenEdit(last, last + 1, end_tok.text + " " + moved))
+    yield Candidate(
+        "reorder/adverbial", RULES["reorder/adverbial"], tuple(edits),
+        {"direction": "to-end", "kind": kind, "phrase": doc[sent.start : b].text},
+    )
 
 
 # --- clauses ---------------------------------------------------------------------------------
@@ -524,41 +795,82 @@ def _clauses(sent: "Span", ctx: Context) -> Iterator[Candidate]:
     if len(subj1) != 1 or len(subj2) != 1:
         return
     last = _last_word(sent)
-    if subj1[0].left_edge.i != sent.start or second.left_edge.i != cc.i + 1 or _right_word(second) != last:
+    start = subj1[0].left_edge.i
+    if second.left_edge.i != cc.i + 1 or _right_word(second) != last:
+        return
+    if start != sent.start and not _shared_prefix(sent, root, start):
         return
     end1 = cc.i - 1 if tokens(doc)[cc.i - 1].text == "," else cc.i
-    if end1 <= sent.start or cc.i <= root.i:
+    if end1 <= start or cc.i <= root.i:
         return
     # clause 1 must be exactly the tokens before the coordinator (no dependents of the root after it)
     if any(t.i > cc.i and t.i <= last and not any(t.i == s.i for s in second.subtree) for t in root.subtree):
         return
-    for head in (root, second):
-        if not _stative(head):
-            return
-    words = [t for t in doc[sent.start : last + 1] if t.i != cc.i]
+    kinds = [_clause_kind(root), _clause_kind(second)]
+    if "past-event" in kinds or kinds.count("event") > 1:
+        return  # "I ordered it and it arrived", "the app crashes and I lose my work": the order is the story
+    if "event" in kinds and any(s.lower_ in ("i", "we", "you") for s in (subj1[0], subj2[0])):
+        return  # "the wifi drops and I'm stuck": the writer's state follows from the event
+    words = [t for t in doc[start : last + 1] if t.i != cc.i]
     if any(t.is_punct and t.text not in ("-", "'") and t.i != end1 for t in words):
         return  # a comma inside a clause ("..., which I like") would not travel well
-    if any(t.lower_ in ANAPHORS or t.lower_ in SEQUENCE_WORDS for t in words):
-        return
-    c1 = _span_text(doc, cc.i + 1, last + 1, initial=True, was_initial=False)
-    c2 = _span_text(doc, sent.start, end1, initial=False, was_initial=True)
-    edits = (TokenEdit(sent.start, end1, c1), TokenEdit(cc.i + 1, last + 1, c2))
-    yield Candidate("reorder/clauses", RULES["reorder/clauses"], edits, {"coordinator": "and"})
+    if any(t.lower_ in ANAPHORS and not (t.dep_ == "det" and t.lower_ in DEMONSTRATIVES) or t.lower_ in SEQUENCE_WORDS for t in words):
+        return  # "the chair is sturdy and my dog loves it"; a demonstrative article ("this cafe") points outside
+    nouns1 = {lemma(t).lower() for t in doc[start : end1] if t.pos_ == "NOUN"}
+    nouns2 = {lemma(t).lower() for t in doc[cc.i + 1 : last + 1] if t.pos_ == "NOUN"}
+    if nouns1 & nouns2:
+        return  # "the room has a balcony and the balcony is huge": the second mention refers back
+    initial = start == sent.start
+    c1 = _span_text(doc, cc.i + 1, last + 1, initial=initial, was_initial=False)
+    c2 = _span_text(doc, start, end1, initial=False, was_initial=initial)
+    edits = (TokenEdit(start, end1, c1), TokenEdit(cc.i + 1, last + 1, c2))
+    yield Candidate("reorder/clauses", RULES["reorder/clauses"], edits, {"coordinator": "and", "kinds": kinds})
+
+
+def _shared_prefix(sent: "Span", root: "Token", start: int) -> bool:
+    """Everything before the first subject is a sentence adverbial or adverbial clause of the
+    main verb ending in a comma ("Honestly, A and B", "Since the refit, A and B"): it covers
+    both clauses in either order, so it stays where it is."""
+    doc = sent.doc
+    if tokens(doc)[start - 1].text != ",":
+        return False
+    left = [c for c in root.children if c.i < start]
+    if not left or any(c.dep_ not in ("advmod", "npadvmod", "prep", "advcl", "punct") for c in left):
+        return False
+    covered = {t.i for c in left for t in c.subtree}
+    return all(i in covered for i in range(sent.start, start))
 
 
 def _right_word(tok: "Token") -> int:
     return max(t.i for t in tok.subtree if not t.is_punct)
 
 
-def _stative(head: "Token") -> bool:
-    """A clause head that describes a state: a linking or stative verb (any tense, no auxiliary
-    but do-support), or a present-tense adjectival passive ("the pockets are well placed")."""
+def _clause_kind(head: "Token") -> str:
+    """"state": a linking or stative verb ("is roomy", "has a pool", "felt safe"), in any tense,
+    with no auxiliary but do-support, "have" of the perfect ("has been great") or a modal ("will
+    be fine"); or an adjectival passive ("the pockets are well placed"). "event": any other verb
+    in the present tense, simple or perfect ("the wifi drops", "the crew have improved").
+    "past-event": the rest ("the zipper broke", "we were waiting")."""
     auxes = [c for c in head.children if c.dep_ in ("aux", "auxpass")]
     if head.tag_ == "VBN" and len(auxes) == 1 and auxes[0].dep_ == "auxpass" and auxes[0].tag_ in ("VBZ", "VBP"):
-        return True
-    if lemma(head) not in STATIVE_VERBS:
-        return False
-    return all(c.dep_ == "aux" and lemma(c) == "do" for c in auxes)
+        return "state"
+    stative = lemma(head) in STATIVE_VERBS and head.tag_ != "VBG"
+    if stative and all(lemma(c) in ("do", "have") or c.tag_ == "MD" for c in auxes):
+        if any(lemma(c) == "have" for c in auxes) and not all(c.tag_ in ("VBZ", "VBP") for c in auxes if lemma(c) == "have"):
+            return "past-event"  # "had been": a past before the past
+        return "state"
+    if not auxes:
+        return "event" if head.tag_ in ("VBZ", "VBP") else "past-event"
+    if len(auxes) == 1:
+        aux = auxes[0]
+        if aux.tag_ == "MD" and head.tag_ == "VB":
+            return "event"  # "you can book online": what may happen, not a story
+        if aux.tag_ in ("VBZ", "VBP") and (
+            (lemma(aux) == "do" and head.tag_ == "VB") or (lemma(aux) == "have" and head.tag_ == "VBN")
+            or (lemma(aux) == "be" and head.tag_ == "VBG")
+        ):
+            return "event"  # "doesn't load", "have improved", "are improving"
+    return "past-event"
 
 
 # --- shuffle ---------------------------------------------------------------------------------

@@ -59,7 +59,8 @@ CASES = [
     ("We had corned beef on rye and matzoh ball soup.", COORD, set()),
     ("It has s-video and composite outputs.", COORD, set()),
     ("#map apps and mobile users love maps.", COORD, set()),
-    ("No cables and no batteries needed.", COORD, set()),
+    ("No cables and no batteries needed.", COORD, {"No batteries and no cables needed."}),  # each has its own "no"
+    ("No hot water and towels.", COORD, set()),  # one "no" over both: "towels and no hot water" says another thing
     ("The tent is warm in the rain and light.", COORD, set()),  # the PP would re-attach
     ("The lid is not tight and secure.", COORD, set()),  # negated scope
     ("The bag felt warm and very soft.", COORD, {"The bag felt very soft and warm."}),
@@ -71,7 +72,8 @@ CASES = [
     ("It either works properly or just stops.", COORD, set()),  # correlative "either ... or"
     ("Pros: size - small and light.", COORD, set()),  # a loose list item
     ("Battery on: 6 hours, off: 8 hours.", ADVL, set()),  # list with colons
-    ("The zipper broke within a few minutes after I opened the box.", ADVL, set()),  # a clause inside
+    ("The zipper broke within a few minutes after I opened the box.", ADVL,
+     {"After I opened the box, the zipper broke within a few minutes."}),  # the clause moves, the PP with a clause inside stays
     ("The tent is light, warm, and cheap.", COORD, {"The tent is warm, cheap, and light."}),
     ("The tent was cold and damp.", COORD, {"The tent was damp and cold."}),
     ("The pack is very comfortable, really durable and quite cheap.", COORD,
@@ -81,11 +83,11 @@ CASES = [
     ("A light and warm bag.", COORD, {"A warm and light bag."}),
     # adverbs, noun phrases, verb phrases
     ("The filter works quickly and quietly.", COORD, {"The filter works quietly and quickly."}),
-    ("The poles and the stakes are sturdy.", COORD, set()),  # noun phrases: only adjectives and adverbs are rotated
+    ("The poles and the stakes are sturdy.", COORD, {"The stakes and the poles are sturdy."}),  # each has its own article
     ("It is light and packs small.", COORD, set()),  # verb phrases are never rotated
     ("The stove heats quickly and shuts off cleanly.", COORD, set()),  # verb phrases
     # capitalisation at the sentence start; proper nouns keep theirs
-    ("Fast shipping and friendly service.", COORD, set()),  # noun phrases
+    ("Fast shipping and friendly service.", COORD, {"Friendly service and fast shipping."}),  # each has its own adjective
     ("Warm and light, the bag packs small.", COORD, {"Light and warm, the bag packs small."}),
     ("Mara and Tobin love the tent.", COORD, set()),  # names
     # questions keep their form
@@ -105,14 +107,53 @@ CASES = [
     ("The zipper broke after two weeks.", ADVL, {"After two weeks, the zipper broke."}),
     ("The stove is great, honestly.", ADVL, {"Honestly, the stove is great."}),  # the comma goes too
     ("The zipper broke, unfortunately.", ADVL, {"Unfortunately, the zipper broke."}),
-    # adverbial: front -> end, comma removed
-    ("In the morning, the stove boils water quickly.", ADVL, set()),  # front to end: never (the phrase may re-attach at the end)
-    ("After two weeks, the zipper broke.", ADVL, set()),  # front to end: never
-    ("In March, Tobin bought the poles.", ADVL, set()),  # front to end: never
-    ("Yesterday the zipper broke.", ADVL, set()),  # front to end: never
-    ("For the price, this stove is excellent.", ADVL, set()),  # front to end: never
+    # adverbial: front -> end, comma removed, when the clause does not end in a noun
+    ("In the morning, the stove boils water quickly.", ADVL, {"The stove boils water quickly in the morning."}),
+    ("After two weeks, the zipper broke.", ADVL, {"The zipper broke after two weeks."}),
+    ("In March, Tobin bought the poles.", ADVL, set()),  # after "the poles" the phrase may attach to the noun
+    ("On the first night, we ate the fish.", ADVL, set()),  # same: "the fish on the first night"
+    ("Yesterday the zipper broke.", ADVL, {"The zipper broke yesterday."}),
+    ("For the price, this stove is excellent.", ADVL, {"This stove is excellent for the price."}),
+    # a sentence adverb keeps its comma at the end
+    ("Unfortunately, the zipper broke.", ADVL, {"The zipper broke, unfortunately."}),
+    ("Honestly, I can't fault the crew.", ADVL, {"I can't fault the crew, honestly."}),  # outside the negation
+    ("I can't fault the crew, honestly.", ADVL, {"Honestly, I can't fault the crew."}),
+    ("Overall, the stay was great.", ADVL, {"The stay was great, overall."}),
+    ("The stay was great overall.", ADVL, {"Overall, the stay was great."}),  # "overall" needs no comma
+    # the example, both ways, and more kinds of adverbial
+    ("The boat left after two hours.", ADVL, {"After two hours, the boat left."}),
+    ("After two hours, the boat left.", ADVL, {"The boat left after two hours."}),
+    ("The bakery restocks the shelves every morning.", ADVL, {"Every morning, the bakery restocks the shelves."}),
+    ("Every morning, the bakery restocks the shelves.", ADVL, {"The bakery restocks the shelves every morning."}),
+    ("The ferry was late on the first night.", ADVL, {"On the first night, the ferry was late."}),
+    ("Since the refit, the pool has been spotless.", ADVL, {"The pool has been spotless since the refit."}),
+    ("The pool has been spotless since the refit.", ADVL, {"Since the refit, the pool has been spotless."}),
+    ("The cabin is perfect for two people.", ADVL, {"For two people, the cabin is perfect."}),  # hangs from the adjective
+    ("The cabin is great for the price.", ADVL, {"For the price, the cabin is great."}),
+    ("The cabin is a great choice for families.", ADVL, {"For families, the cabin is a great choice."}),
+    ("It is good value for money.", ADVL, set()),  # "value for money" is one phrase
+    ("The app freezes sometimes.", ADVL, {"Sometimes, the app freezes."}),
+    ("Sometimes the app freezes.", ADVL, {"The app freezes sometimes."}),
+    ("Last night the music was too loud.", ADVL, {"The music was too loud last night."}),  # "too loud" is a degree, not focus
+    ("The ferry was late because of the fog.", ADVL, {"Because of the fog, the ferry was late."}),
+    ("Thanks to the crew, the trip was great.", ADVL, {"The trip was great thanks to the crew."}),
+    ("The app has not crashed since the update.", ADVL, {"Since the update, the app has not crashed."}),  # outside the negation
+    ("The app keeps crashing since the last update.", ADVL, {"Since the last update, the app keeps crashing."}),
+    ("The app works now.", ADVL, {"Now, the app works."}),
+    ("Now the app works.", ADVL, set()),  # an opening "Now" may be a discourse marker
+    ("The box arrived on time.", ADVL, set()),  # punctuality, not a time frame
+    ("The app doesn't load sometimes.", ADVL, set()),  # "not ... sometimes" changes scope at the front
+    ("We waited for an hour.", ADVL, set()),  # a duration
+    ("I bought it for my son.", ADVL, set()),  # a beneficiary
+    ("The delivery took two days.", ADVL, set()),  # a measure of the verb
+    # adverbial clauses of time, condition and reason
+    ("The room was ready when we arrived.", ADVL, {"When we arrived, the room was ready."}),
+    ("When we arrived, the room was ready.", ADVL, {"The room was ready when we arrived."}),
+    ("If you like seafood, the harbour cafe is great.", ADVL, {"The harbour cafe is great if you like seafood."}),
+    ("We keep coming back because the staff are lovely.", ADVL, {"Because the staff are lovely, we keep coming back."}),
+    ("It crashes whenever I open the map.", ADVL, set()),  # in front, "it" could mean the map
+    ("When the skipper arrived, she apologised.", ADVL, set()),  # at the end, "she" could not be the skipper
     # adverbial: skipped
-    ("Unfortunately, the zipper broke.", ADVL, set()),  # "broke unfortunately" reads as manner
     ("The tent didn't leak in the rain.", ADVL, set()),  # negation scope
     ("It only leaks in heavy rain.", ADVL, set()),  # focus word
     ("It even works in the snow.", ADVL, set()),
@@ -136,6 +177,38 @@ CASES = [
     ("The tent is light but the poles are flimsy.", CLAUSE, set()),
     ("The pockets are deep and the zips are sturdy, which I like.", CLAUSE, set()),  # "which" refers back
     ("The shipping was fast and the price was fair.", CLAUSE, {"The price was fair and the shipping was fast."}),
+    # two evaluations, one of them an event in the present
+    ("The guides are friendly and the boats are clean.", CLAUSE, {"The boats are clean and the guides are friendly."}),
+    ("The crew greet you by name and the coffee is excellent.", CLAUSE,
+     {"The coffee is excellent and the crew greet you by name."}),
+    ("The wifi drops constantly and the chairs are uncomfortable.", CLAUSE,
+     {"The chairs are uncomfortable and the wifi drops constantly."}),
+    ("The staff have been great and the rooms are spotless.", CLAUSE, {"The rooms are spotless and the staff have been great."}),
+    ("This cafe is lovely and the staff are friendly.", CLAUSE, {"The staff are friendly and this cafe is lovely."}),  # "this" points outside
+    ("Honestly, the staff are lovely and the pool is spotless.", CLAUSE,
+     {"Honestly, the pool is spotless and the staff are lovely."}),  # the adverb covers both and stays
+    ("Since the refit, the gym is great and the showers are hot.", CLAUSE,
+     {"Since the refit, the showers are hot and the gym is great."}),
+    ("I ordered the soup and it arrived cold.", CLAUSE, set()),  # a story: order, then arrival
+    ("The mechanic fixed the chain and the bike rode well.", CLAUSE, set()),  # past events: cause and effect
+    ("The wifi drops and I lose my work.", CLAUSE, set()),  # two events: the second follows from the first
+    ("The app crashes and I am stuck.", CLAUSE, set()),  # the writer's state follows from the event
+    ("The cabin has a balcony and the balcony is huge.", CLAUSE, set()),  # the second mention refers back
+    # noun phrases with their own adjectives or articles; three items ending in a complement
+    ("Friendly guides, calm water and a lovely lunch.", COORD, {"Calm water, a lovely lunch and friendly guides."}),
+    ("We loved the friendly guides and the calm water.", COORD, {"We loved the calm water and the friendly guides."}),
+    ("Great food and a lovely view.", COORD, {"A lovely view and great food."}),  # the article is the view's own
+    ("Great coffee and cake.", COORD, set()),  # "great" may cover both
+    ("The fish and chips were great.", COORD, set()),  # bare nouns: often a fixed pair
+    ("There is a sauna and a small pool.", COORD, set()),  # "there is" agrees with the first item
+    ("No hot water and no towels.", COORD, {"No towels and no hot water."}),
+    ("The tour was fun, informative and great for kids.", COORD, {"The tour was informative, fun and great for kids."}),
+    ("The soup was hot, tasty and ready in minutes.", COORD, {"The soup was tasty, hot and ready in minutes."}),
+    ("The guide was patient with the kids and clear about the rules.", COORD,
+     {"The guide was clear about the rules and patient with the kids."}),  # each has its own complement
+    ("The app is quick and easy to use.", COORD, set()),  # "to use" goes with both: it must stay last
+    ("The croissants are fresh and great for breakfast.", COORD, set()),  # two items: the complement may be shared
+    ("Fresh bread and lovely cakes from the bakery.", COORD, set()),  # "from the bakery" may cover both
     # adverbials and coordinated clauses: the phrase would cover only one conjunct at the other end
     ("At night, the headlamp is bright and the strap is comfortable.", ADVL, set()),
     # a misparse guarded against: "cold" is the object of "in", not a conjunct of "easy"
