@@ -213,6 +213,7 @@ def candidates(doc: "Doc", ctx: Context) -> Iterator[Candidate]:
     """Every reorder variant the parse supports; shuffle last (it consumes ``ctx.rng``)."""
     for sent in sents(doc):
         yield from _coordination(sent, ctx)
+        yield from _verbless_list(sent, ctx)
         yield from _adverbial(sent, ctx)
         yield from _clauses(sent, ctx)
     shuffled = _shuffle(doc, ctx)
@@ -455,6 +456,55 @@ def _coordination(sent: "Span", ctx: Context) -> Iterator[Candidate]:
         )
 
 
+def _verbless_list(sent: "Span", ctx: Context) -> Iterator[Candidate]:
+    """A verbless sentence that is only a comma list of noun phrases, each with its own opinion
+    adjective and no article ("Great value, fast delivery." -> "Fast delivery, great value.").
+    spaCy parses the later items as appositions; an article ("Our host, a retired sailor") or an
+    item without an opinion adjective is a real apposition and is left alone."""
+    doc = sent.doc
+    root = sent.root
+    if root.pos_ != "NOUN" or _is_question(sent):
+        return
+    items = [root]
+    while True:
+        nxt = [c for c in items[-1].children if c.dep_ == "appos" and c.i > items[-1].i]
+        nxt += [c for c in root.children if c.dep_ == "appos" and c.i > items[-1].i and items[-1] is not root]
+        if len(nxt) != 1:
+            break
+        items.append(nxt[0])
+    if not 2 <= len(items) <= 4:
+        return
+    spans = []
+    for k, t in enumerate(items):
+        others = {u.i for u in items} - {t.i}
+        span = _conjunct_span(t, "np", others)
+        if span is None or _conjunct_shape(doc, span[0], span[1], t, "np") != "plain":
+            return
+        if any(c.dep_ in ("det", "poss") for c in t.children) or t.pos_ != "NOUN":
+            return
+        if not any(c.dep_ == "amod" and ctx.lexicon.lookup(c.lower_, "ADJ") is not None for c in t.children):
+            return
+        spans.append(span)
+    last = _last_word(sent)
+    if spans[0][0] != sent.start or spans[-1][1] != last + 1:
+        return
+    for (a1, b1), (a2, _b2) in zip(spans, spans[1:]):
+        if [t.text for t in doc[b1:a2]] != [","]:
+            return
+    if any(t.lower_ in NEGATORS or t.like_num or t.lower_ in SEQUENCE_WORDS for t in doc[sent.start : last + 1]):
+        return
+    order = list(range(1, len(spans))) + [0]
+    edits = []
+    for pos, src in enumerate(order):
+        a, b = spans[pos]
+        sa, sb = spans[src]
+        edits.append(TokenEdit(a, b, _span_text(doc, sa, sb, initial=a == sent.start, was_initial=sa == sent.start)))
+    yield Candidate(
+        "reorder/coordination", RULES["reorder/coordination"], tuple(edits),
+        {"kind": "np-list", "conjuncts": len(spans), "coordinator": ","},
+    )
+
+
 def _has_negator(tok: "Token") -> bool:
     return tok.lower_ in NEGATORS or any(c.lower_ in NEGATORS or c.dep_ == "neg" for c in tok.children)
 
@@ -485,6 +535,15 @@ def _coordination_ok(kind: str, conj: list["Token"], toks: list["Span"], texts: 
         verb = conj[0].head
         if conj[0].dep_ in ("attr", "nsubj") and any(c.dep_ == "expl" for c in verb.children):
             return False  # "there is a pool and two saunas": the verb agrees with the first conjunct
+        if conj[0].dep_ in ("nsubj", "nsubjpass") and len(set(det)) != 1:
+            return False  # "Great views and the rooms are clean": a fragment, then a clause, parsed as one subject
+        after = toks[-1].end
+        nxt = toks[-1].doc[after] if after < len(toks[-1].doc) else None
+        above = {t.i for t in conj[0].ancestors}
+        if nxt is not None and not nxt.is_punct and nxt.i not in above and not (
+            nxt.head.i in above and nxt.dep_ in ("aux", "auxpass", "neg", "advmod", "cc")
+        ):
+            return False  # "... in the mornings and the desk team remember you": the last "conjunct" is a clause's subject
     elif len(toks) == 2 and (texts[0], texts[1]) in BINOMIALS:
         return False
     if texts[0] in HENDIADYS and kind == "adj":

@@ -199,6 +199,12 @@ CASES = [
     ("We loved the friendly guides and the calm water.", COORD, {"We loved the calm water and the friendly guides."}),
     ("Great food and a lovely view.", COORD, {"A lovely view and great food."}),  # the article is the view's own
     ("Great coffee and cake.", COORD, set()),  # "great" may cover both
+    ("Great views and the rooms are always clean.", COORD, set()),  # a fragment and a clause, not one subject
+    ("The pool is warm in the mornings and the bar staff actually know your name.", COORD, set()),  # a clause's subject
+    ("The lockers are too small for a laptop bag and a helmet.", COORD, {"The lockers are too small for a helmet and a laptop bag."}),
+    ("Great value, fast delivery.", COORD, {"Fast delivery, great value."}),  # a verbless list
+    ("Friendly crew, calm sea, great lunch.", COORD, {"Calm sea, great lunch, friendly crew."}),
+    ("Our host, a retired sailor.", COORD, set()),  # an apposition, not a list
     ("The fish and chips were great.", COORD, set()),  # bare nouns: often a fixed pair
     ("There is a sauna and a small pool.", COORD, set()),  # "there is" agrees with the first item
     ("No hot water and no towels.", COORD, {"No towels and no hot water."}),
