@@ -57,8 +57,8 @@ CASES = [
     ("The pack will be light.", "double-negation/antonym", "The pack won't be heavy."),
     ("The kettle has been quick.", "double-negation/antonym", "The kettle hasn't been slow."),
     ("The setup is easy and I do not mind the weight.", NO, NO),  # a negation already in the text
-    ("The price is reasonable.", "double-negation/antonym", "The price isn't overpriced."),
-    ("The jacket is warm.", "double-negation/antonym", "The jacket isn't cold."),
+    ("The price is reasonable.", "double-negation/prefix", "The price is not unreasonable."),  # "prices aren't overpriced" is no English
+    ("The jacket is warm.", NO, NO),  # no entry: "the chicken was warm" is a complaint, "wasn't cold" would praise it
     # ---- prefix: full "not" unless the text contracts
     ("The tent is comfortable.", "double-negation/prefix", "The tent is not uncomfortable."),
     ("The seller was honest.", "double-negation/prefix", "The seller was not dishonest."),
@@ -80,9 +80,67 @@ CASES = [
     ("We enjoyed the trip.", "double-negation/verb", "We didn't dislike the trip."),
     ("I trust this filter.", "double-negation/verb", "I don't distrust this filter."),
     ("I have liked this brand for years.", "double-negation/verb", "I haven't disliked this brand for years."),
+    # ---- extreme words take the plain opposite of the other pole: "not awful" only denies the worst
+    ("The stove is excellent.", "double-negation/antonym", "The stove isn't bad."),
+    ("The soup was awful.", "double-negation/antonym", "The soup wasn't good."),
+    ("The guide was terrible.", "double-negation/antonym", "The guide wasn't good."),
+    ("The lodge was filthy.", "double-negation/antonym", "The lodge wasn't clean."),
+    ("The cabin was spotless.", "double-negation/antonym", "The cabin wasn't dirty."),
+    ("The kayak is perfect for beginners.", "double-negation/antonym", "The kayak isn't bad for beginners."),
+    ("The view was gorgeous.", "double-negation/antonym", "The view wasn't bad."),  # "*the stew wasn't ugly"
+    # ---- degree words: amplifiers on the edited word are dropped ("not very bad" would grant "bad")
+    ("The tent is very comfortable.", "double-negation/prefix", "The tent is not uncomfortable."),
+    ("The stew was really tasty.", "double-negation/antonym", "The stew wasn't bland."),
+    ("The staff were extremely rude.", "double-negation/antonym", "The staff weren't polite."),
+    ("The map is pretty good.", "double-negation/antonym", "The map isn't bad."),  # "pretty good" ~ "not bad": not stronger
+    ("The tent was so easy.", "double-negation/antonym", "The tent wasn't difficult."),
+    ("The porter was really kind about it.", "double-negation/prefix", "The porter was not unkind about it."),  # "really" parsed onto "was"
+    ("I really love this lodge.", "double-negation/verb", "I don't hate this lodge."),
+    ("The app is a bit slow.", NO, NO),  # softener: "isn't fast" could be stronger than "a bit slow"
+    ("The app is slightly confusing.", NO, NO),  # softener, as above
+    ("The canoe is so light that it floats away.", NO, NO),  # "so ... that": a result clause, not a degree
+    # ---- a list of adjectives as a whole, "or" under the negation (not A or B = neither)
+    ("The staff were friendly and helpful.", "double-negation/prefix", "The staff were not unfriendly or unhelpful."),
+    ("The guide was really helpful and patient.", "double-negation/antonym", "The guide was not unhelpful or impatient."),
+    ("The tent is sturdy and heavy.", NO, NO),  # mixed polarity in one list
+    ("The instructions were unclear and incomplete.", NO, NO),  # "incomplete" has no entry: half a list edited
+    # ---- prefixed negative words to their plain base
+    ("The staff were unhelpful.", "double-negation/antonym", "The staff weren't helpful."),
+    ("The booking page is inconvenient.", "double-negation/antonym", "The booking page isn't convenient."),
+    # ---- more common review adjectives, both directions
+    ("The shuttle was late.", "double-negation/antonym", "The shuttle wasn't on time."),
+    ("The guide was punctual.", "double-negation/antonym", "The guide wasn't late."),
+    ("The lantern is cheap.", "double-negation/antonym", "The lantern isn't expensive."),
+    ("The rooms are pricey.", "double-negation/antonym", "The rooms aren't cheap."),
+    ("The hike was painless.", "double-negation/antonym", "The hike wasn't painful."),
+    ("The checkout was painful.", "double-negation/antonym", "The checkout wasn't painless."),
+    ("The bread was soggy.", "double-negation/antonym", "The bread wasn't crisp."),
+    ("The fries were crisp.", NO, NO),  # no entry: "crisp" photos are not "soggy", crisp fries not "blurry"
+    ("The receptionist was hostile.", "double-negation/antonym", "The receptionist wasn't friendly."),
+    ("The booking form is straightforward.", "double-negation/antonym", "The booking form isn't complicated."),
+    ("The trip was stressful.", "double-negation/antonym", "The trip wasn't relaxing."),
+    # ---- linking verbs of appearance; no verbs of a kept or reached state
+    ("The stew looks fresh.", "double-negation/antonym", "The stew doesn't look stale."),
+    ("Looks great.", "double-negation/antonym", "Doesn't look bad."),  # review style without a subject
+    ("The tent stayed dry.", NO, NO),  # "didn't stay wet" says it was wet before
+    ("The water remained clean.", NO, NO),  # "didn't remain dirty": the same
+    ("The kayak became unstable.", NO, NO),  # "didn't become stable" says nothing of how it is
+    # ---- passives of opinion participles
+    ("I was disappointed with the box.", "double-negation/antonym", "I wasn't impressed with the box."),
+    ("We were delighted with the cabin.", "double-negation/antonym", "We weren't disappointed with the cabin."),
+    ("I was impressed by the guide.", "double-negation/prefix", "I was not unimpressed by the guide."),
+    ("I was disappointed in the guide.", NO, NO),  # "*impressed in the guide"
+    ("I got annoyed with the app.", NO, NO),  # a change of state (see "became")
+    # ---- verbs
+    ("Loved it.", "double-negation/verb", "Didn't hate it."),  # review style without a subject
+    ("I dislike the new menu.", "double-negation/verb", "I don't like the new menu."),
+    ("The guide impressed us.", "double-negation/verb", "The guide didn't disappoint us."),
+    ("The weather report disappointed me.", "double-negation/verb", "The weather report didn't impress me."),
+    # ---- the rest of the text
+    ("The kit is good when the poles arent bent.", NO, NO),  # a negation without apostrophe already in the text
+    ("The soup was tasty and the portions were small.", NO, NO),  # a plain clause may carry an unseen opinion
     # ---- skipped
-    ("The tent is very comfortable.", NO, NO),  # degree word on the adjective
-    ("The jacket is warm and light.", NO, NO),  # coordination
+    ("The jacket is warm and light.", NO, NO),  # a list is edited as a whole: "warm" has no entry
     ("It's a comfortable tent.", NO, NO),  # attributive: a/an would change
     ("The stove was reliable, but it is noisy.", NO, NO),  # mixed polarity
     ("The tent isn't comfortable.", NO, NO),  # already negated
@@ -92,7 +150,6 @@ CASES = [
     ("I'd like a bigger one.", NO, NO),  # a wish
     ("I have always liked this brand.", NO, NO),  # scope adverb
     ("I love it so much.", NO, NO),
-    ("The stove is excellent.", NO, NO),  # extreme: "not awful" is faint praise
     ("The tent is cheaper than mine.", NO, NO),  # comparative
     ("It was easy to set up and easy to take down.", NO, NO),
     # the negation family's precision guards hold here too
@@ -126,6 +183,15 @@ def test_several_candidates_one_per_opinion(nlp, lex):
     assert got == [
         ("double-negation/antonym", "The lantern is sturdy and the light isn't wobbly."),
         ("double-negation/antonym", "The lantern isn't flimsy and the light is steady."),
+    ]
+
+
+def test_amplifier_on_an_untouched_word_stays(nlp, lex):
+    # only the amplifier of the edited word goes; the other clause keeps its "very"
+    got = run(nlp, lex, "The poles are sturdy and the bag is very light.")
+    assert got == [
+        ("double-negation/antonym", "The poles are sturdy and the bag isn't heavy."),
+        ("double-negation/antonym", "The poles aren't flimsy and the bag is very light."),
     ]
 
 
