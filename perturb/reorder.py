@@ -142,14 +142,17 @@ PEOPLE_NOUNS = frozenset(
     "people person couple couples family families kid kids child children group groups beginner beginners "
     "guest guests visitor visitors adult adults student students".split()
 )
+# Devices and pages a service is used on ("works fine on my phone", "clearer in the app").
+DEVICE_NOUNS = frozenset("phone phones tablet tablets laptop laptops app website site screen desktop computer".split())
 MEAL_NOUNS = frozenset({"breakfast", "brunch", "lunch", "dinner", "supper"})
 # Prepositions whose phrase is a free adjunct of the main verb when its noun is of the right kind
 # (None: any noun).
 ADJUNCT_PREPS = {
-    "in": TIME_NOUNS | CONDITION_NOUNS | PLACE_NOUNS | {"experience", "opinion", "view"},
-    "on": TIME_NOUNS | PLACE_NOUNS,
+    "in": TIME_NOUNS | CONDITION_NOUNS | PLACE_NOUNS | DEVICE_NOUNS | {"experience", "opinion", "view"},
+    "on": TIME_NOUNS | PLACE_NOUNS | DEVICE_NOUNS,
     "at": TIME_NOUNS | PLACE_NOUNS | {"altitude"},
-    "for": PRICE_NOUNS,  # "for the price"; not durations ("for an hour") or beneficiaries ("for my son")
+    "for": PRICE_NOUNS,
+    "from": frozenset({"start", "beginning", "outset"}),  # "from the start"  # "for the price"; not durations ("for an hour") or beneficiaries ("for my son")
     "after": None,  # any noun: "after two weeks", "after the first wash"
     "before": None,
     "during": None,
@@ -173,6 +176,7 @@ ADJECTIVE_FRAME_PREPS = {
     "during": None,
     "since": None,
     "throughout": None,
+    "from": frozenset({"start", "beginning", "outset"}),
 }
 TIME_PREPS = frozenset({"after", "before", "during", "since", "until", "till", "throughout", "within", "over"})
 TIME_UNITS = frozenset(
@@ -196,7 +200,7 @@ STANCE_ADVERBS = frozenset(
 CLAUSE_MARKERS = frozenset({"when", "whenever", "if", "because", "once", "after", "before", "since", "until", "unless"})
 ARGUMENT_VERBS = frozenset(  # verbs whose place phrase is an argument ("left it in the car")
     "put leave keep store place hang set stand sit lie live go come get arrive drive walk take bring "
-    "carry fit pack move send ship return stay remain work wait sleep eat".split()
+    "carry fit pack move send ship return stay remain work wait sleep eat spend".split()
 )
 CONTRAST = frozenset({"but", "yet", "although", "though", "while", "whereas", "however"})
 CATENATIVES = frozenset({"keep", "start", "begin", "stop", "continue"})  # "keeps crashing"
@@ -599,7 +603,8 @@ def _adjunct(tok: "Token", root: "Token", host: "Token") -> bool:
             return False
         if word in ("on", "in") and noun.lower_ == "time" and not list(noun.children):
             return False  # "arrived on time", "in time": punctuality, not a time frame
-        if noun.lower_ in PLACE_NOUNS and lemma(root) in ARGUMENT_VERBS:
+        if noun.lower_ in PLACE_NOUNS and lemma(root) in ARGUMENT_VERBS or \
+                noun.lower_ in DEVICE_NOUNS and lemma(root) in ARGUMENT_VERBS - {"work"}:
             return False  # "we stayed at the harbour": the place is the verb's argument
         return True
     if on_adjective:
@@ -628,16 +633,30 @@ def _reason_object(tok: "Token", link_word: str) -> bool:
     return len(rest) == 1 and rest[0].dep_ == "pobj" and rest[0].pos_ == "NOUN"
 
 
+def _every_time(tok: "Token") -> bool:
+    """"every time" / "each time" with a clause of its own, a clause of time like "whenever"."""
+    kids = list(tok.children)
+    return (
+        tok.dep_ == "npadvmod" and tok.lower_ == "time" and len(kids) == 2
+        and kids[0].dep_ == "det" and kids[0].lower_ in ("every", "each") and kids[0].i == tok.i - 1
+        and kids[1].dep_ == "relcl" and kids[1].pos_ in ("VERB", "AUX")
+    )
+
+
 def _clause_adjunct(tok: "Token", root: "Token") -> bool:
     """An adverbial clause of time, condition or reason that may stand at either end ("when we
     arrived", "if you like seafood", "because the staff are lovely")."""
-    if tok.dep_ != "advcl" or tok.pos_ not in ("VERB", "AUX"):
-        return False
     sub = list(tok.subtree)
-    first = sub[0]
-    if first.lower_ not in CLAUSE_MARKERS or first.head.i != tok.i or first.dep_ not in ("mark", "advmod"):
-        return False
-    if not any(c.dep_ in ("nsubj", "nsubjpass", "expl") for c in tok.children):
+    if _every_time(tok):
+        verb = next(c for c in tok.children if c.dep_ == "relcl")  # "every time I open the app"
+    else:
+        if tok.dep_ != "advcl" or tok.pos_ not in ("VERB", "AUX"):
+            return False
+        first = sub[0]
+        if first.lower_ not in CLAUSE_MARKERS or first.head.i != tok.i or first.dep_ not in ("mark", "advmod"):
+            return False
+        verb = tok
+    if not any(c.dep_ in ("nsubj", "nsubjpass", "expl") for c in verb.children):
         return False  # "after waiting an hour": the subject is the main clause's
     if len(sub) > 14:
         return False
@@ -647,6 +666,9 @@ def _clause_adjunct(tok: "Token", root: "Token") -> bool:
 def _adverbial(sent: "Span", ctx: Context) -> Iterator[Candidate]:
     doc = sent.doc
     root = sent.root
+    if not _is_question(sent) and root.pos_ in ("NOUN", "ADJ"):
+        yield from _fragment_stance(sent, root)
+        yield from _fragment_price(sent, root, ctx.lexicon)
     if _is_question(sent) or root.pos_ not in ("VERB", "AUX"):
         return
     if any(t.lower_ in CONTRAST and t.pos_ != "NOUN" for t in sent):
@@ -669,6 +691,68 @@ def _adverbial(sent: "Span", ctx: Context) -> Iterator[Candidate]:
         return
     yield from _to_front(sent, root, subj, last, scoped, ctx.lexicon)
     yield from _to_end(sent, root, subj, last, scoped)
+
+
+def _fragment_stance(sent: "Span", root: "Token") -> Iterator[Candidate]:
+    """A sentence adverb set off by a comma at either end of a verbless sentence ("Honestly,
+    great value." <-> "Great value, honestly.")."""
+    doc = sent.doc
+    last = _last_word(sent)
+    if last - sent.start < 3 or not (last + 1 < sent.end or sent.end == len(doc)):
+        return
+    if any(t.lower_ in CONTRAST or t.text in (":", ";") or t.text[:1] in "@#" for t in sent):
+        return
+    first, end = tokens(doc)[sent.start], tokens(doc)[last]
+    def stance(t: "Token") -> bool:
+        return t.lower_ in STANCE_ADVERBS and t.head.i == root.i and not list(t.children)
+    body_ok = lambda a, b: not any(t.is_punct and t.text not in ("'", "-") for t in doc[a:b])
+    if stance(first) and tokens(doc)[sent.start + 1].text == "," and body_ok(sent.start + 2, last + 1):
+        nxt = sent.start + 2
+        edits = [TokenEdit(sent.start, nxt, ""), TokenEdit(last, last + 1, end.text + ", " + first.text.lower())]
+        cap = _span_text(doc, nxt, nxt + 1, initial=True, was_initial=False)
+        if cap != tokens(doc)[nxt].text:
+            edits.insert(1, TokenEdit(nxt, nxt + 1, cap))
+        yield Candidate("reorder/adverbial", RULES["reorder/adverbial"], tuple(edits),
+                        {"direction": "to-end", "kind": "stance", "phrase": first.text})
+    elif stance(end) and tokens(doc)[last - 1].text == "," and body_ok(sent.start, last - 1):
+        moved = _span_text(doc, last, last + 1, initial=True, was_initial=False)
+        edits = [TokenEdit(sent.start, sent.start, moved + ",")]
+        low = _span_text(doc, sent.start, sent.start + 1, initial=False, was_initial=True)
+        if low != first.text:
+            edits.append(TokenEdit(sent.start, sent.start + 1, low))
+        edits.append(TokenEdit(last - 1, last + 1, ""))
+        yield Candidate("reorder/adverbial", RULES["reorder/adverbial"], tuple(edits),
+                        {"direction": "to-front", "kind": "stance", "phrase": end.text})
+
+
+def _fragment_price(sent: "Span", root: "Token", lex) -> Iterator[Candidate]:
+    """"for the price" / "for the money" ending a verbless noun phrase with an opinion adjective
+    moves to the front ("Great food for the price." -> "For the price, great food.")."""
+    doc = sent.doc
+    last = _last_word(sent)
+    if root.pos_ != "NOUN" or sent.start != root.left_edge.i or not (last + 1 < sent.end or sent.end == len(doc)):
+        return
+    if not any(c.dep_ == "amod" and c.i < root.i and lex.lookup(c.lower_, "ADJ") is not None for c in root.children):
+        return
+    tail = [c for c in root.children if c.i > root.i and not c.is_punct]
+    if len(tail) != 1 or tail[0].dep_ != "prep" or tail[0].lower_ != "for" or tail[0].right_edge.i != last:
+        return
+    objs = [c for c in tail[0].children if c.dep_ == "pobj"]
+    if len(list(tail[0].children)) != 1 or len(objs) != 1 or objs[0].lower_ not in PRICE_NOUNS:
+        return
+    if [(c.dep_, c.lower_) for c in objs[0].children] != [("det", "the")]:
+        return  # "value for money" is one phrase
+    if any(t.is_punct and t.text not in ("'", "-") or t.lower_ in NEGATORS for t in doc[sent.start : last + 1]):
+        return
+    a = tail[0].i
+    moved = _span_text(doc, a, last + 1, initial=True, was_initial=False)
+    edits = [TokenEdit(sent.start, sent.start, moved + ",")]
+    low = _span_text(doc, sent.start, sent.start + 1, initial=False, was_initial=True)
+    if low != tokens(doc)[sent.start].text:
+        edits.append(TokenEdit(sent.start, sent.start + 1, low))
+    edits.append(TokenEdit(a, last + 1, ""))
+    yield Candidate("reorder/adverbial", RULES["reorder/adverbial"], tuple(edits),
+                    {"direction": "to-front", "kind": "phrase", "phrase": doc[a : last + 1].text})
 
 
 def _degree_too(tok: "Token") -> bool:
@@ -734,7 +818,7 @@ def _to_front(sent: "Span", root: "Token", subj: "Token", last: int, scoped: str
     prev = tokens(doc)[a - 1]
     has_comma = prev.text == ","
     sub = list(adv.subtree)
-    if adv.dep_ == "advcl":
+    if adv.dep_ == "advcl" or _every_time(adv):
         if scoped or not _clause_adjunct(adv, root):
             return
         if _third_person(t for t in doc[sent.start : a]) and any(t.pos_ in ("NOUN", "PROPN") for t in sub):
@@ -793,7 +877,7 @@ def _to_end(sent: "Span", root: "Token", subj: "Token", last: int, scoped: str) 
     end_tok = tokens(doc)[last]
     sub = list(adv.subtree)
     stance = adv.dep_ == "advmod" and adv.lower_ in STANCE_ADVERBS
-    if adv.dep_ == "advcl":
+    if adv.dep_ == "advcl" or _every_time(adv):
         if scoped or not _clause_adjunct(adv, root):
             return
         if _third_person(t for t in doc[nxt : last + 1]) and any(t.pos_ in ("NOUN", "PROPN") for t in sub):

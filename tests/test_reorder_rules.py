@@ -64,7 +64,9 @@ CASES = [
     ("The tent is warm in the rain and light.", COORD, set()),  # the PP would re-attach
     ("The lid is not tight and secure.", COORD, set()),  # negated scope
     ("The bag felt warm and very soft.", COORD, {"The bag felt very soft and warm."}),
-    ("The stove freezes every time it gets cold.", ADVL, set()),  # a clause-like NP
+    ("The stove freezes every time it gets cold.", ADVL, {"Every time it gets cold, the stove freezes."}),  # like "whenever"
+    ("Every time I visit, the staff are lovely.", ADVL, {"The staff are lovely every time I visit."}),
+    ("Every time I open the app, it crashes.", ADVL, set()),  # at the end, "it" could not be the app
     ("I have had this stove for about five months.", ADVL, set()),  # a duration of the perfect
     ("The lid pops open every ten minutes or so.", ADVL, set()),  # frequency with "or so"
     ("I told @sam about it yesterday.", ADVL, set()),  # a tweet with a mention
@@ -146,6 +148,18 @@ CASES = [
     ("We waited for an hour.", ADVL, set()),  # a duration
     ("I bought it for my son.", ADVL, set()),  # a beneficiary
     ("The delivery took two days.", ADVL, set()),  # a measure of the verb
+    # verbless sentences: a sentence adverb at either end, "for the price" to the front
+    ("Honestly, great value.", ADVL, {"Great value, honestly."}),
+    ("Great value for the price, honestly.", ADVL, {"Honestly, great value for the price."}),
+    ("Sadly, not worth it.", ADVL, {"Not worth it, sadly."}),
+    ("Great food for the price.", ADVL, {"For the price, great food."}),
+    ("Good value for money.", ADVL, set()),  # one phrase
+    # devices and "from the start"
+    ("The app works fine on my phone.", ADVL, {"On my phone, the app works fine."}),
+    ("On my phone, the app works fine.", ADVL, {"The app works fine on my phone."}),
+    ("The service has been great from the start.", ADVL, {"From the start, the service has been great."}),
+    ("I spent an hour on the phone.", ADVL, set()),  # "spend ... on": an argument
+    ("I work at the cafe.", ADVL, set()),  # the place is the verb's argument
     # adverbial clauses of time, condition and reason
     ("The room was ready when we arrived.", ADVL, {"When we arrived, the room was ready."}),
     ("When we arrived, the room was ready.", ADVL, {"The room was ready when we arrived."}),
