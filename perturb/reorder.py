@@ -3,9 +3,13 @@
 Rules:
 
 ``reorder/coordination`` (hold)
-    Rotate the conjuncts of an "and"/"or" coordination of adjectives, manner adverbs or noun
-    phrases: "light, warm and cheap" -> "warm, cheap and light", "friendly staff and clean
-    rooms" -> "clean rooms and friendly staff". A conjunct is one word after its degree adverbs
+    Rotate the conjuncts of an "and"/"or" coordination of adjectives, manner adverbs, noun
+    phrases or present-tense linking verbs: "light, warm and cheap" -> "warm, cheap and light",
+    "friendly staff and clean rooms" -> "clean rooms and friendly staff", "looks great and tastes
+    amazing" -> "tastes amazing and looks great" (look, taste, smell, sound, feel, seem, work,
+    each with its own complement and no auxiliary, negation or phrase that might be shared). A
+    verbless comma list of noun phrases, each with its own opinion adjective and no article, also
+    rotates ("Great value, fast delivery." -> "Fast delivery, great value."). A conjunct is one word after its degree adverbs
     ("very light"), a noun after its own article, possessive, adjectives or compounds ("the calm
     water"), or an adjective with its own complement ("patient with the kids", "happy to help").
     When only the last conjunct has a complement it may belong to all of them ("quick and easy to
@@ -18,7 +22,8 @@ Rules:
     item). Not rotated: verb and prepositional phrases (their modifiers re-attach: "corned beef on
     rye and soup"), conjuncts glued to a hyphen, slash, hashtag or link ("s-video"), a negation
     over the whole coordination ("not tight and secure", "no cables and batteries"; "no X and no
-    Y" moves), identity words ("same or similar"), correlatives ("either ... or"), loose list
+    Y" moves), focus words and, for verbs, comparatives ("tastes even better" is measured
+    against the first), identity words ("same or similar"), correlatives ("either ... or"), loose list
     items with colons or dashes, fixed binomials ("pros and cons", "nice and warm"), and
     conjuncts that refer back with a pronoun ("the tent and its poles"). Commas and the
     coordinator stay where they are, so an Oxford comma is kept when the text has one.
@@ -30,12 +35,14 @@ Rules:
     the clause does not end in a noun the phrase could attach to ("On the first night, we ate the
     fish" stays). Kinds: prepositional phrases of time, place, condition, reason and frame ("on
     the first night", "since the refit", "because of the fog", "thanks to the crew", "in my
-    experience", "for the price"; after a predicate adjective or evaluative noun also "for two
+    experience", "for the price", "on my phone", "from the start"; after a predicate adjective or evaluative noun also "for two
     people", "for families", "for breakfast"), time noun phrases ("every week", "last night"),
     time and frequency adverbs ("yesterday", "lately", "sometimes"; "now" only to the front),
     sentence adverbs ("honestly", "unfortunately", "overall"; they keep a comma at the end), and
     adverbial clauses of time, condition and reason ("when we arrived", "if you like seafood",
-    "because the staff are lovely"). A phrase ending the clause may hang from the verb, from a
+    "because the staff are lovely", "every time I visit"). In a verbless sentence, a sentence
+    adverb set off by a comma moves between the ends ("Honestly, great value." <-> "Great value,
+    honestly.") and "for the price" moves to the front ("For the price, great food."). A phrase ending the clause may hang from the verb, from a
     predicate adjective ("is perfect for two people") or from the verb after "keep"/"start"
     ("keeps crashing since the update"). Only clean phrases: no coordination, approximation
     ("about two weeks", "or so"), clause inside a phrase, number in a time noun phrase ("two
@@ -208,7 +215,11 @@ DEMONSTRATIVES = frozenset({"this", "that", "these", "those"})
 # Coordinations that may be rotated: adjectives, manner adverbs and noun phrases with their own
 # article or adjective; verb and prepositional phrases are not (their modifiers re-attach to the
 # wrong conjunct: "corned beef on rye and soup").
-SAFE_KINDS = frozenset({"adj", "adv", "np"})
+SAFE_KINDS = frozenset({"adj", "adv", "np", "vp"})
+# Verb phrases rotate only when every verb is a linking verb of perception or "work" in the
+# simple present, each with its own complement ("looks great and tastes amazing"): they describe
+# properties, not a sequence of events.
+LINKING_VERBS = frozenset({"look", "taste", "smell", "sound", "feel", "seem", "work"})
 NOT_SCALAR = frozenset({"same", "similar", "other", "different", "next", "last", "first", "only", "own", "such"})
 CONTENT_POS = frozenset({"NOUN", "PROPN", "VERB", "ADJ", "ADV", "NUM"})
 
@@ -294,6 +305,8 @@ def _conjunct_span(tok: "Token", kind: str, others: set[int]) -> tuple[int, int]
         elif kind in ("adj", "adv") and c.dep_ in ("det", "poss", "nummod"):
             skip.update(t.i for t in c.subtree)  # "A light and warm bag": the article is the noun's
     idx = sorted(t.i for t in tok.subtree if t.i not in skip)
+    if kind == "vp":
+        idx = [i for i in idx if i >= tok.i]  # the subject is shared
     while idx and (tok.doc[idx[0]].is_punct):
         idx.pop(0)
     while idx and (tok.doc[idx[-1]].is_punct):
@@ -339,6 +352,10 @@ def _conjunct_shape(doc: "Doc", a: int, b: int, head: "Token", kind: str) -> str
         return "plain"
     if kind == "adv":
         return None
+    if kind == "vp":
+        ok = all(c.dep_ in ("acomp", "advmod", "oprd") and not any(
+            t.dep_ in ("prep", "cc", "conj", "advcl", "relcl", "mark") or t.is_punct for t in c.subtree) for c in post)
+        return "plain" if ok else None  # "looks great", "works well"; no phrase that might be shared
     if kind == "adj" and all(c.lower_ == "enough" and not list(c.children) for c in post):
         return "plain"  # "big enough"
     for c in post:
@@ -393,6 +410,8 @@ def _coordination(sent: "Span", ctx: Context) -> Iterator[Candidate]:
             continue  # verb and prepositional conjuncts carry modifiers that re-attach
         if kind == "np" and any(t.pos_ != "NOUN" for t in conj):
             continue  # names ("Mara and Tobin") and adjectives the tagger took for nouns
+        if kind == "vp" and not _linking_vps(conj):
+            continue  # "pitched it and slept in it", "heats quickly and shuts off": events in sequence
         if kind in ("adj", "adv") and head.dep_ in ("pobj", "dobj", "nsubj", "nsubjpass", "compound"):
             continue  # "reliable in the cold and easy to light": "cold" is not coordinated with "easy"
         if kind == "np" and head.dep_ == "compound":
@@ -431,6 +450,8 @@ def _coordination(sent: "Span", ctx: Context) -> Iterator[Candidate]:
             continue  # "configured properly or just isn't": only manner adverbs
         if _negation_shared(head, conj):
             continue
+        if any(t.lower_ in FOCUS_WORDS or (kind == "vp" and t.tag_ in ("JJR", "RBR")) for a, b in spans for t in doc[a:b]):
+            continue  # "smells lovely and tastes even better": the second is measured against the first
         toks = [doc[a:b] for a, b in spans]
         texts = [s.text.lower() for s in toks]
         if len(set(texts)) != len(texts):
@@ -507,6 +528,21 @@ def _verbless_list(sent: "Span", ctx: Context) -> Iterator[Candidate]:
         "reorder/coordination", RULES["reorder/coordination"], tuple(edits),
         {"kind": "np-list", "conjuncts": len(spans), "coordinator": ","},
     )
+
+
+def _linking_vps(conj: list["Token"]) -> bool:
+    """Every verb a present-tense linking verb with no auxiliary, negation or subject of its own,
+    and nothing between the first verb and its subject ("It quickly ...")."""
+    for k, v in enumerate(conj):
+        if lemma(v) not in LINKING_VERBS or v.tag_ not in ("VBZ", "VBP"):
+            return False
+        if any(c.dep_ in ("aux", "auxpass", "neg", "expl") or (k > 0 and c.dep_ in ("nsubj", "nsubjpass")) for c in v.children):
+            return False
+        if not any(c.dep_ in ("acomp", "advmod", "oprd") and c.i > v.i for c in v.children):
+            return False
+    first = conj[0]
+    subj = [c for c in first.children if c.dep_ in ("nsubj", "nsubjpass")]
+    return len(subj) == 1 and subj[0].right_edge.i == first.i - 1
 
 
 def _has_negator(tok: "Token") -> bool:

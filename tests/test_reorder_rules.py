@@ -87,7 +87,12 @@ CASES = [
     ("The filter works quickly and quietly.", COORD, {"The filter works quietly and quickly."}),
     ("The poles and the stakes are sturdy.", COORD, {"The stakes and the poles are sturdy."}),  # each has its own article
     ("It is light and packs small.", COORD, set()),  # verb phrases are never rotated
-    ("The stove heats quickly and shuts off cleanly.", COORD, set()),  # verb phrases
+    ("The stove heats quickly and shuts off cleanly.", COORD, set()),  # verb phrases of events
+    ("The bread looks great and tastes amazing.", COORD, {"The bread tastes amazing and looks great."}),  # linking verbs
+    ("The app looks nice and works well.", COORD, {"The app works well and looks nice."}),
+    ("The soup smells lovely and tastes even better.", COORD, set()),  # "even better" is measured against the first
+    ("The bread looked great and tasted amazing.", COORD, set()),  # past tense: kept as told
+    ("The cabin feels cosy and looks great at night.", COORD, set()),  # "at night" may cover both
     # capitalisation at the sentence start; proper nouns keep theirs
     ("Fast shipping and friendly service.", COORD, {"Friendly service and fast shipping."}),  # each has its own adjective
     ("Warm and light, the bag packs small.", COORD, {"Light and warm, the bag packs small."}),
