@@ -11,6 +11,8 @@ What the rules edit:
   "The tent doesn't feel flimsy". *stay*, *remain*, *get*, *become* are left out: they speak of a
   state kept or reached, and negating the opposite changes what is presupposed ("stayed dry" ->
   "didn't stay wet" says it was wet before);
+- the one opinion adjective of a noun complement after "a"/"an" ("It's a great place" -> "It's not
+  a bad place"; the article is chosen again);
 - an opinion participle in a passive with *be* ("I was disappointed with the box" -> "I wasn't
   impressed with the box"), with no preposition or *with*/*by* after it;
 - a list of such adjectives joined by one "and", as a whole, with "or" under the negation ("The
@@ -21,7 +23,8 @@ What the rules edit:
 
 Degree words: an amplifier right on the edited word (very, really, so, super, extremely, pretty,
 quite, ...) is dropped, never kept: "very good" -> "not bad" (weaker, the same direction), where
-"not very bad" would grant that it is bad. Softeners ("a bit", "slightly", "fairly") are not
+"not very bad" would grant that it is bad. So is "too" right before a negative adjective ("too
+expensive" -> "not cheap"); elsewhere "too" means "also" and the text is skipped. Softeners ("a bit", "slightly", "fairly") are not
 dropped: "a bit slow" -> "not fast" could be stronger; such clauses are skipped. Extreme words take
 the plain opposite of the other pole ("excellent" -> "not bad", "awful" -> "not good"); the
 opposite is never an extreme word itself ("not awful" only denies the worst and can read as a
@@ -31,8 +34,9 @@ A text qualifies only when every opinion word in it has one polarity, the text h
 yet (else the new negation could meet an old one), and no clause of the text without an opinion
 word has an adjective or noun complement (it may carry an opinion the lexicon does not know, of the
 other polarity, which a weakened clause could let through). The shared precision guards of the
-negation family (``text_guard``, ``clause_doubt``, ``insertion``) apply to every edited clause;
-attributive adjectives are left alone (a/an would change).
+negation family (``text_guard``, ``clause_doubt``, ``insertion``) apply to every edited clause.
+Verbless sentences are edited as the negation family edits them ("So easy." -> "Not difficult.",
+"Great soup." -> "Not a bad soup."), noun phrases only with an article.
 """
 
 from __future__ import annotations
@@ -41,8 +45,9 @@ from typing import TYPE_CHECKING, Iterator
 
 from pairflip.perturb import grammar as g
 from pairflip.perturb.base import NEGATORS, Candidate, Context, TokenEdit, match_case, tokens
-from pairflip.perturb.negation import (analyse, clause_doubt, dropped_subject, insertion, opinion_of, or_for_and,
-                                       predicate_opinion, text_guard)
+from pairflip.perturb.base import sents
+from pairflip.perturb.negation import (_article, analyse, clause_doubt, dropped_subject, insertion, opinion_of,
+                                       or_for_and, predicate_opinion, text_guard)
 
 if TYPE_CHECKING:  # pragma: no cover
     from spacy.tokens import Doc, Token
@@ -68,7 +73,9 @@ _PARTICIPLE_PREPS = frozenset({"with", "by"})
 # "also", "too", "enough": the clause points at another one ("liked it enough to buy another").
 _ADDITIVE = frozenset({"also", "too", "enough"})
 _DEFAULT_STYLE = {"double-negation/prefix": g.FULL}
-_MODIFIER_DEPS = ("advmod", "conj", "cc", "npadvmod", "neg", "xcomp", "ccomp")
+# Nouns that take no "a" though the tagger calls them singular ("friendly staff").
+_NO_ARTICLE = frozenset({"staff", "personnel", "produce", "veg", "fruit", "bread", "meat", "fish", "wifi",
+                         "internet", "parking", "kit", "gear", "stuff", "furniture", "luggage", "information"})
 
 
 def candidates(doc: "Doc", ctx: Context) -> Iterator[Candidate]:
@@ -98,9 +105,14 @@ def _amplifiers(doc: "Doc", ctx: Context) -> dict[int, int]:
     right before its opinion complement ("was really kind", parsed onto *was*)."""
     out: dict[int, int] = {}
     for t in tokens(doc):
-        if g.norm(t.text) not in AMPLIFIERS or t.dep_ != "advmod" or list(t.children):
+        if g.norm(t.text) not in AMPLIFIERS | {"too"} or t.dep_ != "advmod" or list(t.children):
             continue
         h = t.head
+        if g.norm(t.text) == "too":  # "too expensive" -> "not cheap"; "too kind" is a polite hedge
+            entry = opinion_of(h, ctx.lexicon)
+            if h.pos_ == "ADJ" and h.i == t.i + 1 and entry is not None and entry.polarity < 0:
+                out[t.i] = h.i
+            continue
         if t.i < h.i and h.pos_ in ("ADJ", "VERB") and opinion_of(h, ctx.lexicon) is not None:
             out[t.i] = h.i
         elif g.base_form(h) in LINKING:
@@ -170,9 +182,9 @@ def _candidates(doc: "Doc", ctx: Context) -> Iterator[Candidate]:
     if text_guard(doc, lex) is not None:  # cheap whole-text checks before the clause analysis
         return
     an = analyse(doc, lex)
-    if an.unsure or not an.clauses or any(t.dep_ == "dep" for cl in an.clauses for t in cl.own):
+    if an.unsure or not (an.clauses or an.fragments) or any(t.dep_ == "dep" for cl in an.clauses for t in cl.own):
         return
-    polarities = {opinion_of(t, lex).polarity for cl in an.clauses for t in cl.opinion}
+    polarities = {opinion_of(t, lex).polarity for t in tokens(doc) if opinion_of(t, lex) is not None}
     if len(polarities) != 1 or any(cl.nonfinite_opinion for cl in an.clauses):
         return
     if any(g.norm(t.text) in _ADDITIVE for t in tokens(doc)):
@@ -180,6 +192,9 @@ def _candidates(doc: "Doc", ctx: Context) -> Iterator[Candidate]:
     for o in an.others:
         if g.aux_kind(o.head) == "be" and any(c.dep_ in ("acomp", "attr") and c.pos_ in ("ADJ", "NOUN") for c in o.head.children):
             return  # "... and the portions were small": an opinion the lexicon cannot see
+    if not an.clauses:
+        yield from _fragment(doc, an, lex)
+        return
     text_style = g.text_style(doc)
     for cl in an.clauses:
         head = cl.head
@@ -197,6 +212,9 @@ def _adjectives(cl: "Clause", lex, text_style: str | None) -> Iterator[Candidate
     """'is clean' -> 'isn't dirty'; 'is friendly and helpful' -> 'is not unfriendly or unhelpful'."""
     head = cl.head
     firsts = [c for c in head.children if c.dep_ in ("acomp", "attr", "oprd") and opinion_of(c, lex) is not None]
+    if not firsts:
+        yield from _attributive(cl, lex, text_style)
+        return
     if len(firsts) != 1:
         return
     first = firsts[0]
@@ -236,6 +254,41 @@ def _adjectives(cl: "Clause", lex, text_style: str | None) -> Iterator[Candidate
                           "kind": "+".join(sorted(kinds)), "style": style})
 
 
+def _attributive(cl: "Clause", lex, text_style: str | None) -> Iterator[Candidate]:
+    """'It's a great place' -> 'It's not a bad place': the one opinion adjective of a noun
+    complement, after "a"/"an" (chosen again for the opposite: "an excellent" -> "a bad")."""
+    head = cl.head
+    nouns = [c for c in head.children if c.dep_ == "attr" and c.pos_ == "NOUN" and c.tag_ == "NN"]
+    if len(nouns) != 1 or clause_doubt(cl, lex) is not None:
+        return
+    noun = nouns[0]
+    adjs = [c for c in noun.children if c.dep_ == "amod"]
+    if len(adjs) != 1 or [t.i for t in cl.opinion] != [adjs[0].i]:
+        return
+    adj = adjs[0]
+    det = [c for c in noun.children if c.dep_ == "det"]
+    if [c.dep_ for c in noun.children if c.i < noun.i] != ["det", "amod"] or g.norm(det[0].text) not in ("a", "an") \
+            or det[0].i + 1 != adj.i or adj.i + 1 != noun.i or not _plain_adjective(adj, cl):
+        return  # "a really great place", "a great little place", "the best place": keep it to "a ADJ NOUN"
+    if any(c.i > noun.i and c.dep_ not in ("prep", "punct") for c in noun.children):
+        return  # "a great place that ...": a relative clause
+    opp = _opposite(adj, lex, "ADJ")
+    if opp is None:
+        return
+    word, kind = opp
+    art = _article(word)
+    if art is None:
+        return
+    rule = f"double-negation/{kind}"
+    style = text_style or _DEFAULT_STYLE.get(rule, g.CONTRACTED)
+    res = insertion(cl, style)
+    if isinstance(res, str):
+        return
+    edits = [*res[1], TokenEdit(det[0].i, det[0].i + 1, match_case(art, det[0].text)),
+             TokenEdit(adj.i, adj.i + 1, match_case(word, adj.text))]
+    yield Candidate(rule, RULES[rule], tuple(edits), meta={"word": adj.text, "opposite": word, "kind": kind, "style": style})
+
+
 def _participle(cl: "Clause", lex, text_style: str | None) -> Iterator[Candidate]:
     """'I was disappointed with the box' -> 'I wasn't impressed with the box'."""
     head = cl.head
@@ -251,6 +304,8 @@ def _participle(cl: "Clause", lex, text_style: str | None) -> Iterator[Candidate
     if opp is None:
         return
     word, kind = opp
+    if not word.endswith("ed") and any(c.dep_ in ("prep", "agent") for c in head.children):
+        return  # "was broken by the courier" -> "*wasn't working by the courier"
     rule = f"double-negation/{kind}"
     style = text_style or _DEFAULT_STYLE.get(rule, g.CONTRACTED)
     res = insertion(cl, style)
@@ -280,3 +335,57 @@ def _verb(cl: "Clause", lex, text_style: str | None) -> Iterator[Candidate]:
         return
     yield Candidate("double-negation/verb", "weaken", tuple(res[1]),
                     meta={"word": head.text, "opposite": opp[0], "kind": opp[1], "style": style})
+
+
+def _fragment(doc: "Doc", an, lex) -> Iterator[Candidate]:
+    """A verbless sentence, toggled as the negation family toggles it, with the opposite in place
+    of its opinion adjective(s): "So easy." -> "Not difficult.", "Handy app." -> "Not a useless
+    app.", "Loud and dirty." -> "Not quiet or clean." Noun phrases only with an article ("not a"):
+    "Not bad recipes." or "Not unfriendly staff." is no natural English."""
+    if len(an.fragments) != 1 or len(list(sents(doc))) != 1:
+        return
+    fr = an.fragments[0]
+    if fr.inserted != 1 or fr.removed != 0:
+        return
+    root = fr.root
+    ops = [t for t in tokens(doc) if opinion_of(t, lex) is not None]
+    if root.pos_ == "ADJ":
+        targets = sorted([root, *root.conjuncts], key=lambda t: t.i)
+    else:
+        targets = [t for t in ops if t.dep_ == "amod" and t.head.i == root.i]
+        if len(targets) != 1:
+            return
+    if {t.i for t in ops} - {root.i} != {t.i for t in targets} - {root.i} or \
+            any(t.pos_ != "ADJ" or t.tag_ != "JJ" for t in targets):
+        return
+    lead = min(fr.edits, key=lambda e: e.start)
+    tok = doc[lead.start]
+    prefix = lead.text[: len(lead.text) - len(tok.text)].rstrip()
+    if g.norm(prefix) not in ("not", "not a", "not an"):
+        return  # "not the best": superlatives
+    if root.pos_ != "ADJ" and g.norm(prefix) == "not" and g.norm(tok.text) not in ("a", "an"):
+        return  # a bare noun phrase: "Not bad recipes."
+    if root.pos_ != "ADJ" and g.norm(root.text) in _NO_ARTICLE:
+        return  # "*Not an unfriendly staff."
+    opps = [_opposite(t, lex, "ADJ") for t in targets]
+    if any(o is None for o in opps):
+        return
+    edits = [e for e in fr.edits if e is not lead]
+    for t, (word, _kind) in zip(targets, opps):
+        if t.i != tok.i:
+            edits.append(TokenEdit(t.i, t.i + 1, match_case(word, t.text) if not t.text[:1].isupper() else word))
+    if tok.i in {t.i for t in targets}:
+        word = opps[[t.i for t in targets].index(tok.i)][0]
+        if g.norm(prefix) in ("not a", "not an"):
+            art = _article(word)
+            if art is None:
+                return
+            prefix = prefix.split()[0] + " " + art
+        edits.append(TokenEdit(tok.i, tok.i + 1, f"{prefix} {word}"))
+    else:
+        edits.append(lead)
+    kinds = {o[1] for o in opps}
+    rule = "double-negation/prefix" if kinds == {"prefix"} else "double-negation/antonym"
+    yield Candidate(rule, RULES[rule], tuple(sorted(edits, key=lambda e: (e.start, e.end))),
+                    meta={"word": " ".join(t.text for t in targets), "opposite": " ".join(o[0] for o in opps),
+                          "kind": "+".join(sorted(kinds)), "style": g.FULL, "fragment": True})

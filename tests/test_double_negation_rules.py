@@ -139,13 +139,39 @@ CASES = [
     # ---- the rest of the text
     ("The kit is good when the poles arent bent.", NO, NO),  # a negation without apostrophe already in the text
     ("The soup was tasty and the portions were small.", NO, NO),  # a plain clause may carry an unseen opinion
+    # ---- "too" before a negative adjective is a degree word: dropped; elsewhere it means "also"
+    ("Coffee is too expensive.", "double-negation/antonym", "Coffee isn't cheap."),
+    ("The guide was too kind.", NO, NO),  # "too kind" is a polite hedge, not a degree of praise
+    ("The pack is too heavy to carry.", NO, NO),  # "*isn't light to carry"
+    ("The tent is good too.", NO, NO),  # additive "too": points at another clause
+    # ---- a noun complement with one opinion adjective, the article chosen again
+    ("This is an excellent lodge.", "double-negation/antonym", "This isn't a bad lodge."),
+    ("It was a lovely stay.", "double-negation/antonym", "It wasn't an unpleasant stay."),
+    ("It is the best place.", NO, NO),  # superlative
+    ("It's a great little place.", NO, NO),  # two words before the noun: keep it to "a ADJ NOUN"
+    ("It's a great place that I love.", NO, NO),  # a relative clause with its own opinion
+    # ---- negative participles whose opposite is no participle take no complement
+    ("The printer was broken.", "double-negation/antonym", "The printer wasn't working."),
+    ("The seal was broken by the courier.", NO, NO),  # "*wasn't working by the courier"
+    # ---- verbless sentences
+    ("So easy.", "double-negation/antonym", "Not difficult."),
+    ("Awful.", "double-negation/antonym", "Not good."),
+    ("Extremely slow app.", "double-negation/antonym", "Not a fast app."),
+    ("Great soup.", "double-negation/antonym", "Not a bad soup."),
+    ("A great service.", "double-negation/antonym", "Not a bad service."),
+    ("Quick and easy.", "double-negation/antonym", "Not slow or difficult."),
+    ("Really disappointing for the price.", "double-negation/antonym", "Not satisfying for the price."),
+    ("Friendly staff.", NO, NO),  # "*Not an unfriendly staff"
+    ("Great recipes.", NO, NO),  # a bare plural: "Not bad recipes." is no natural English
+    ("The best tent.", NO, NO),  # superlative
+    ("Excellent tent!", NO, NO),  # an exclamation (the negation family's fragment guard)
     # ---- skipped
     ("The jacket is warm and light.", NO, NO),  # a list is edited as a whole: "warm" has no entry
-    ("It's a comfortable tent.", NO, NO),  # attributive: a/an would change
+    ("It's a comfortable tent.", "double-negation/prefix", "It's not an uncomfortable tent."),  # a/an chosen again
     ("The stove was reliable, but it is noisy.", NO, NO),  # mixed polarity
     ("The tent isn't comfortable.", NO, NO),  # already negated
     ("Is the tent comfortable?", NO, NO),  # question
-    ("Comfortable tent.", NO, NO),  # fragment
+    ("Comfortable tent.", "double-negation/prefix", "Not an uncomfortable tent."),  # fragment, as the negation family makes it
     ("If it is clean, I will keep it.", NO, NO),  # conditional
     ("I'd like a bigger one.", NO, NO),  # a wish
     ("I have always liked this brand.", NO, NO),  # scope adverb
