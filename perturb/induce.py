@@ -484,7 +484,9 @@ def lexicon_lines(lex: InducedLexicon, *, corpus: str = "", label_name: str = ""
     """
     s = lex.settings
     t = lex.texts
-    yield "# Opinion words learned by `pairflip lexicon`" + (f" from {corpus}" if corpus else "") + (
+    from pairflip.perturb.lexicon import LEARNED_MARK
+
+    yield LEARNED_MARK + (f" from {corpus}" if corpus else "") + (
         f" ({label_name})" if label_name else "")
     yield ("# method: weighted log-odds ratio with an informative Dirichlet prior (Monroe, Colaresi & Quinn "
            "2008, Political Analysis 16(4)), positive texts against negative ones")

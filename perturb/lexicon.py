@@ -48,6 +48,12 @@ CONTEXTS = ("-", "alone")
 INTENSIFIER_KINDS = ("amplifier", "extreme-amplifier", "softener")
 ANTONYM_KINDS = ("antonym", "prefix")
 
+# The first line of a lexicon written by ``pairflip lexicon`` (perturb/induce.py). Its new words
+# are "learned": they count only where no other lexicon word gives the sentence an opinion, so a
+# topic word the corpus ties to one side ("dvd", "camera": a product the reviews liked or not)
+# cannot make an opinion sentence mixed, and still gives a sentence with no other opinion word one.
+LEARNED_MARK = "# Opinion words learned by `pairflip lexicon`"
+
 OPINION_COLUMNS = ("word", "pos", "polarity", "grade", "context")
 INTENSIFIER_COLUMNS = ("word", "kind")
 ANTONYM_COLUMNS = ("word", "pos", "opposite", "kind")
@@ -60,6 +66,9 @@ class OpinionWord:
     polarity: int
     grade: str
     context: str = "-"
+    # A word a learned lexicon (``pairflip lexicon``) adds to the built-in one: it counts as an
+    # opinion only in a sentence where no other lexicon word does (see ``LEARNED_MARK``).
+    learned: bool = field(default=False, compare=False)
 
 
 @dataclass
@@ -113,7 +122,14 @@ class Lexicon:
         return cached[1]
 
     def extend(self, path: str | Path) -> None:
-        for entry in _read_opinion(Path(path).read_text(encoding="utf-8"), str(path)):
+        """Add a user's ``opinion.tsv``-format file. The words of a learned lexicon (its first line
+        is :data:`LEARNED_MARK`) that the lexicon does not yet have are marked ``learned``; the
+        ones it has are corrections and replace the entry as any user's word does."""
+        text = Path(path).read_text(encoding="utf-8")
+        learned = text.startswith(LEARNED_MARK)
+        for entry in _read_opinion(text, str(path)):
+            if learned and self.lookup(entry.word, entry.pos) is None and phrase_words(entry.word) not in self.phrases:
+                entry = OpinionWord(entry.word, entry.pos, entry.polarity, entry.grade, entry.context, learned=True)
             self.add(entry)
         self.sources.append(str(path))
 

@@ -206,6 +206,22 @@ def opinion_of(tok: "Token", lexicon: "Lexicon"):
 
 
 def _opinion_of(tok: "Token", lexicon: "Lexicon"):
+    hit = _lexicon_opinion(tok, lexicon)
+    if hit is not None and hit.learned and core_opinion_in_sentence(tok, lexicon):
+        return None  # a learned word counts only where no other lexicon word gives an opinion
+    return hit
+
+
+def core_opinion_in_sentence(tok: "Token", lexicon: "Lexicon") -> bool:
+    """Does a word of the lexicon that is not a learned one carry an opinion in ``tok``'s sentence?"""
+    sent = sent_of(tok)
+    memo = tok.doc.user_data.setdefault(("pairflip.core_opinion", id(lexicon)), {})
+    if sent.start not in memo:
+        memo[sent.start] = any((h := _lexicon_opinion(t, lexicon)) is not None and not h.learned for t in sent)
+    return memo[sent.start]
+
+
+def _lexicon_opinion(tok: "Token", lexicon: "Lexicon"):
     sp = phrase_at(tok, lexicon)
     if sp is not None:  # "waste of money", "on time": one opinion, carried by the expression's head
         return sp.entry if sp.head == tok.i else None

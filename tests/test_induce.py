@@ -243,6 +243,38 @@ def test_learned_lexicon_is_taken_by_build_and_changes_the_suite(shop, tmp_path)
     assert str(lex) in suites["learned"].header["generator"]["lexicons"]
 
 
+def test_learned_words_count_only_in_sentences_without_a_built_in_opinion(tmp_path, nlp):
+    import random
+
+    from pairflip.perturb.base import Context
+    from pairflip.perturb import negation
+    from pairflip.perturb.lexicon import LEARNED_MARK, load_lexicon
+
+    rows = "word\tpos\tpolarity\tgrade\nstove\tNOUN\t-1\t-\nskeevy\tADJ\t-1\tgradable\n"
+    learned = tmp_path / "learned.tsv"
+    learned.write_text(LEARNED_MARK + " from t.csv\n" + rows, encoding="utf-8")
+    hand = tmp_path / "hand.tsv"
+    hand.write_text(rows, encoding="utf-8")
+
+    def opinion(text, word, files):
+        lex = load_lexicon(files)
+        doc = nlp(text)
+        return negation.opinion_of(next(t for t in doc if t.text == word), lex)
+
+    def plan(text, files):
+        cand = negation.plan(nlp(text), Context(lexicon=load_lexicon(files), rng=random.Random(0)))
+        return cand if isinstance(cand, str) else cand.rule
+
+    # a topic word the corpus tied to complaints does not make a praising sentence mixed ...
+    assert opinion("The stove is reliable.", "stove", [learned]) is None
+    assert opinion("The stove is reliable.", "stove", [hand]).polarity == -1  # a hand lexicon's word counts fully
+    assert plan("The stove is reliable.", [learned]) == "negation/copula"
+    # ... and a learned word still gives a sentence with no other opinion word its opinion
+    assert opinion("The burner is skeevy.", "skeevy", [learned]).polarity == -1
+    assert plan("The burner is skeevy.", [learned]) == "negation/copula"
+    assert plan("The burner is skeevy.", []) == "no opinion"
+
+
 def test_pos_option_leaves_out_the_parts_of_speech_not_asked_for(shop, tmp_path):
     out = tmp_path / "adj.tsv"
     r = run_cli(["lexicon", str(shop), "--text-column", "review", "--label-column", "stars", "-o", str(out),
@@ -412,22 +444,35 @@ def _pair_counts(texts, nlp, files=()):
     return {f: got[f] for f in families}
 
 
-@pytest.mark.external
-@pytest.mark.skipif(not external_data.enabled(), reason="set PAIRFLIP_EXTERNAL_DATA=1 to fetch the vaderSentiment sdist")
-@pytest.mark.xfail(
-    strict=True,
-    reason="known gap, reported as expected-to-fail (not as a pass): the learned lexicon raises negation pairs "
-    "but lowers intensifier and double-negation pairs on the other half; the topic and behaviour words it "
-    "learns (camera, dvd, unit; use, return, try) make opinion texts mixed-polarity, which those rules skip",
-)
-def test_learned_lexicon_raises_the_pairs_build_makes_on_the_other_half(snippet_halves, learned, tmp_path, nlp):
+@pytest.fixture(scope="module")
+def other_half_counts(snippet_halves, learned, nlp):
     _, tsv, _ = learned
     texts = [t for _, t in snippet_halves[1]]
     before = _pair_counts(texts, nlp)
     after = _pair_counts(texts, nlp, [tsv])
-    _, no_nouns, _ = _learn_from(snippet_halves[0], tmp_path, nlp, pos_tags=("ADJ", "ADV", "VERB"))
-    without_nouns = _pair_counts(texts, nlp, [no_nouns])
-    print(f"pairs on the other half ({len(texts)} snippets): built-in only {before}; with --lexicon induced.tsv "
-          f"{after}; learned with --pos ADJ,ADV,VERB {without_nouns}")
-    for family in before:
-        assert after[family] > before[family], family
+    print(f"pairs on the other half ({len(texts)} snippets): built-in only {before}; with --lexicon induced.tsv {after}")
+    return before, after
+
+
+@pytest.mark.external
+@pytest.mark.skipif(not external_data.enabled(), reason="set PAIRFLIP_EXTERNAL_DATA=1 to fetch the vaderSentiment sdist")
+def test_learned_lexicon_raises_negation_and_intensifier_pairs_on_the_other_half(other_half_counts):
+    """Measured 2026-12-03: negation 189 -> 206, intensifier 333 -> 335, double negation 52 -> 52.
+    Learned words count only in sentences with no built-in opinion word, so the topic words the
+    corpus ties to one side (camera, dvd, unit) no longer make opinion sentences mixed."""
+    before, after = other_half_counts
+    assert after["negation"] > before["negation"]
+    assert after["intensifier"] > before["intensifier"]
+    assert after["double-negation"] >= before["double-negation"]  # never fewer
+
+
+@pytest.mark.external
+@pytest.mark.skipif(not external_data.enabled(), reason="set PAIRFLIP_EXTERNAL_DATA=1 to fetch the vaderSentiment sdist")
+@pytest.mark.xfail(
+    strict=True,
+    reason="known gap, reported as expected-to-fail (not as a pass): a learned word has no antonym, so double "
+    "negation (negation + the word's opposite) cannot use it; the learned lexicon leaves its count where it was",
+)
+def test_learned_lexicon_raises_double_negation_pairs_on_the_other_half(other_half_counts):
+    before, after = other_half_counts
+    assert after["double-negation"] > before["double-negation"]
