@@ -201,19 +201,20 @@ def _candidates(doc: "Doc", ctx: Context) -> Iterator[Candidate]:
         if cl.subj is None and not dropped_subject(cl):
             continue  # imperatives ("Stay safe!"), fragments
         if g.base_form(head) in LINKING:
-            yield from _adjectives(cl, lex, text_style)
+            yield from _adjectives(cl, lex, text_style, alone=len(an.clauses) + len(an.others) == 1)
         elif head.tag_ == "VBN" and any(c.dep_ == "auxpass" for c in head.children):
             yield from _participle(cl, lex, text_style)
         else:
             yield from _verb(cl, lex, text_style)
 
 
-def _adjectives(cl: "Clause", lex, text_style: str | None) -> Iterator[Candidate]:
+def _adjectives(cl: "Clause", lex, text_style: str | None, alone: bool) -> Iterator[Candidate]:
     """'is clean' -> 'isn't dirty'; 'is friendly and helpful' -> 'is not unfriendly or unhelpful'."""
     head = cl.head
     firsts = [c for c in head.children if c.dep_ in ("acomp", "attr", "oprd") and opinion_of(c, lex) is not None]
     if not firsts:
-        yield from _attributive(cl, lex, text_style)
+        if alone:  # "It was a rough week and it cheered me up": the noun phrase may only set the scene
+            yield from _attributive(cl, lex, text_style)
         return
     if len(firsts) != 1:
         return
@@ -358,6 +359,9 @@ def _fragment(doc: "Doc", an, lex) -> Iterator[Candidate]:
     if {t.i for t in ops} - {root.i} != {t.i for t in targets} - {root.i} or \
             any(t.pos_ != "ADJ" or t.tag_ != "JJ" for t in targets):
         return
+    if any(c.dep_ not in ("punct", "conj", "cc") and not (c.dep_ == "prep" and g.norm(c.text) == "for")
+           for t in targets for c in t.children):
+        return  # "Simple as that." is an idiom; only "for ..." ("for the price") may follow
     lead = min(fr.edits, key=lambda e: e.start)
     tok = doc[lead.start]
     prefix = lead.text[: len(lead.text) - len(tok.text)].rstrip()

@@ -149,7 +149,8 @@ CASES = [
     ("It was a lovely stay.", "double-negation/antonym", "It wasn't an unpleasant stay."),
     ("It is the best place.", NO, NO),  # superlative
     ("It's a great little place.", NO, NO),  # two words before the noun: keep it to "a ADJ NOUN"
-    ("It's a great place that I love.", NO, NO),  # a relative clause with its own opinion
+    ("It's a great place that I love.", NO, NO),
+    ("It was a rough week and the guide cheered us up.", NO, NO),  # the noun phrase sets the scene; the other clause carries the opinion  # a relative clause with its own opinion
     # ---- negative participles whose opposite is no participle take no complement
     ("The printer was broken.", "double-negation/antonym", "The printer wasn't working."),
     ("The seal was broken by the courier.", NO, NO),  # "*wasn't working by the courier"
@@ -161,6 +162,8 @@ CASES = [
     ("A great service.", "double-negation/antonym", "Not a bad service."),
     ("Quick and easy.", "double-negation/antonym", "Not slow or difficult."),
     ("Really disappointing for the price.", "double-negation/antonym", "Not satisfying for the price."),
+    ("Simple as that.", NO, NO),  # an idiom: "*Not complicated as that."
+    ("Good for beginners.", "double-negation/antonym", "Not bad for beginners."),
     ("Friendly staff.", NO, NO),  # "*Not an unfriendly staff"
     ("Great recipes.", NO, NO),  # a bare plural: "Not bad recipes." is no natural English
     ("The best tent.", NO, NO),  # superlative
