@@ -98,7 +98,7 @@ DEFAULT_COORDINATORS = {"and", "or"}
 # Pronouns and determiners that point back to something said before (anaphora).
 ANAPHORS = frozenset(
     "it its itself they them their theirs themselves this that these those he him his she her hers one ones "
-    "which who whom whose".split()
+    "which who whom whose mine yours ours".split()
 )
 # Fixed binomials whose order is idiomatic (common practice; a short list for review text).
 BINOMIALS = frozenset(
@@ -150,7 +150,7 @@ PEOPLE_NOUNS = frozenset(
     "guest guests visitor visitors adult adults student students".split()
 )
 # Devices and pages a service is used on ("works fine on my phone", "clearer in the app").
-DEVICE_NOUNS = frozenset("phone phones tablet tablets laptop laptops app website site screen desktop computer".split())
+DEVICE_NOUNS = frozenset("phone phones tablet tablets laptop laptops app website site desktop computer".split())
 MEAL_NOUNS = frozenset({"breakfast", "brunch", "lunch", "dinner", "supper"})
 # Prepositions whose phrase is a free adjunct of the main verb when its noun is of the right kind
 # (None: any noun).
@@ -342,7 +342,7 @@ def _conjunct_shape(doc: "Doc", a: int, b: int, head: "Token", kind: str) -> str
         if kind in ("adj", "adv"):
             if not _degree(c, head):
                 return None
-        elif c.dep_ not in ("det", "poss", "amod", "compound") or any(
+        elif c.dep_ not in ("det", "poss", "amod", "compound") or c.pos_ == "VERB" or any(
             t.pos_ == "NUM" or t.like_num or t.dep_ not in ("det", "poss", "amod", "compound", "advmod", "case")
             for t in c.subtree
         ):
@@ -639,6 +639,8 @@ def _adjunct(tok: "Token", root: "Token", host: "Token") -> bool:
             return False
         if word in ("on", "in") and noun.lower_ == "time" and not list(noun.children):
             return False  # "arrived on time", "in time": punctuality, not a time frame
+        if noun.lower_ in DEVICE_NOUNS and not any(c.dep_ in ("acomp", "advmod", "attr", "dobj") for c in root.children):
+            return False  # "I've tried on two phones": at the front, the verb is left bare
         if noun.lower_ in PLACE_NOUNS and lemma(root) in ARGUMENT_VERBS or \
                 noun.lower_ in DEVICE_NOUNS and lemma(root) in ARGUMENT_VERBS - {"work"}:
             return False  # "we stayed at the harbour": the place is the verb's argument
@@ -696,6 +698,8 @@ def _clause_adjunct(tok: "Token", root: "Token") -> bool:
         return False  # "after waiting an hour": the subject is the main clause's
     if len(sub) > 14:
         return False
+    if any(t.dep_ == "pcomp" and t.pos_ == "VERB" for t in sub):
+        return False  # "when we're away without cancelling": the gerund may belong to the main clause
     return not any(t.is_punct and t.text not in ("'", "-") or t.dep_ in ("cc", "conj") or t.text[:1] in "@#" for t in sub)
 
 
@@ -717,7 +721,7 @@ def _adverbial(sent: "Span", ctx: Context) -> Iterator[Candidate]:
     focused = any(t.lower_ in FOCUS_WORDS and not _degree_too(t) for t in sent)
     scoped = "focus" if focused else "negation" if negated else ""
     subj = [c for c in root.children if c.dep_ in ("nsubj", "nsubjpass", "expl")]
-    if len(subj) != 1:
+    if len(subj) != 1 or _not_a_clause(root, subj[0]):
         return  # imperatives and fragments
     if any(c.dep_ == "conj" and c.pos_ in ("VERB", "AUX") for c in root.children):
         return  # "At night, A and B": at the other end the phrase would cover only one conjunct
@@ -791,6 +795,27 @@ def _fragment_price(sent: "Span", root: "Token", lex) -> Iterator[Candidate]:
                     {"direction": "to-front", "kind": "phrase", "phrase": doc[a : last + 1].text})
 
 
+def _not_a_clause(root: "Token", subj: "Token") -> bool:
+    """A parse that only looks like a clause: a bare participle as the main verb ("Keeps logging
+    me out ...", "logging" with "Keeps" as its subject), or a subject that is a verbless phrase
+    followed by a clause ("Super friendly couriers and the food is always cold": the first item
+    has no article, a later one has)."""
+    if root.tag_ in ("VBG", "VBN") and not any(c.dep_ in ("aux", "auxpass") for c in root.children):
+        return True
+    conj = _conjuncts(subj) if subj.pos_ == "NOUN" else [subj]
+    if len(conj) > 1:
+        det = [any(c.dep_ in ("det", "poss") for c in t.children) for t in conj]
+        return not det[0] and any(det)
+    return False
+
+
+def _name_like_start(sent: "Span") -> bool:
+    """The sentence opens with a capitalised word tagged as a name: it may be a common noun
+    ("App crashes ...", "Quality has improved ..."), whose capital should not travel."""
+    first = tokens(sent.doc)[sent.start]
+    return first.pos_ == "PROPN" and first.text[:1].isupper() and not first.text.isupper()
+
+
 def _degree_too(tok: "Token") -> bool:
     """"too" before an adjective or adverb ("too loud") is a degree word, not the additive "too"."""
     return tok.lower_ == "too" and tok.head.pos_ in ("ADJ", "ADV") and tok.head.i == tok.i + 1
@@ -850,9 +875,13 @@ def _to_front(sent: "Span", root: "Token", subj: "Token", last: int, scoped: str
     if found is None or subj.left_edge.i != sent.start:
         return
     adv, host = found
+    if _name_like_start(sent):
+        return
     a = adv.left_edge.i
     prev = tokens(doc)[a - 1]
     has_comma = prev.text == ","
+    if any(t.text == "," and t.i != a - 1 for t in sent):
+        return  # "charged twice, 44.99 and 44.99 on the same day": an appended list, another comma's phrase
     sub = list(adv.subtree)
     if adv.dep_ == "advcl" or _every_time(adv):
         if scoped or not _clause_adjunct(adv, root):
@@ -907,6 +936,8 @@ def _to_end(sent: "Span", root: "Token", subj: "Token", last: int, scoped: str) 
     has_comma = b < len(doc) and tokens(doc)[b].text == ","
     nxt = b + 1 if has_comma else b
     if subj.left_edge.i != nxt or nxt >= last:
+        return
+    if any(t.text == "," and t.i != b for t in sent):
         return
     if not (last + 1 < sent.end or sent.end == len(doc)):
         return  # no closing punctuation to put the phrase before, and more text follows
@@ -971,10 +1002,12 @@ def _clauses(sent: "Span", ctx: Context) -> Iterator[Candidate]:
         return
     subj1 = [c for c in root.children if c.dep_ in ("nsubj", "nsubjpass", "expl")]
     subj2 = [c for c in second.children if c.dep_ in ("nsubj", "nsubjpass", "expl")]
-    if len(subj1) != 1 or len(subj2) != 1:
+    if len(subj1) != 1 or len(subj2) != 1 or _not_a_clause(root, subj1[0]) or _not_a_clause(second, subj2[0]):
         return
     last = _last_word(sent)
     start = subj1[0].left_edge.i
+    if start == sent.start and _name_like_start(sent):
+        return
     if second.left_edge.i != cc.i + 1 or _right_word(second) != last:
         return
     if start != sent.start and not _shared_prefix(sent, root, start):

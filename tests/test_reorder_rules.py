@@ -165,6 +165,15 @@ CASES = [
     ("The service has been great from the start.", ADVL, {"From the start, the service has been great."}),
     ("I spent an hour on the phone.", ADVL, set()),  # "spend ... on": an argument
     ("I work at the cafe.", ADVL, set()),  # the place is the verb's argument
+    # parses that only look like clauses, and capitals that should not travel
+    ("Keeps logging me out every time I close the app.", ADVL, set()),  # no subject: "Keeps" taken for one
+    ("Super friendly guides and the boat is always late when it rains.", ADVL, set()),  # a fragment, then a clause
+    ("App crashes every time I open the map.", ADVL, set()),  # "App" tagged as a name: its capital is unclear
+    ("I have tried on two different phones.", ADVL, set()),  # in front, "I have tried" is left bare
+    ("I can skip weeks when we are away without cancelling.", ADVL, set()),  # "without cancelling" is the main clause's
+    ("I got charged twice, 4 and 4 on the same day.", ADVL, set()),  # a phrase after an appended list
+    ("Mine is old and the menu takes ages to load.", CLAUSE, set()),  # "mine" would read as "my menu"
+    ("Tried wifi and mobile data.", COORD, set()),  # a verb taken for an adjective
     # adverbial clauses of time, condition and reason
     ("The room was ready when we arrived.", ADVL, {"When we arrived, the room was ready."}),
     ("When we arrived, the room was ready.", ADVL, {"The room was ready when we arrived."}),
