@@ -30,10 +30,11 @@ the plain opposite of the other pole ("excellent" -> "not bad", "awful" -> "not 
 opposite is never an extreme word itself ("not awful" only denies the worst and can read as a
 complaint).
 
-A text qualifies only when every opinion word in it has one polarity, the text holds no negation
-yet (else the new negation could meet an old one), and no clause of the text without an opinion
-word has an adjective or noun complement (it may carry an opinion the lexicon does not know, of the
-other polarity, which a weakened clause could let through). The shared precision guards of the
+A text qualifies only when every opinion word in it has one polarity and the text holds no negation
+yet (else the new negation could meet an old one). Other clauses without an opinion word are left
+as they are, also when they may carry an opinion the lexicon does not know ("and the portions were
+small"): clauses of opposite opinion are most often joined by "but", which the shared guards skip,
+and the weakened clause keeps its direction. The shared precision guards of the
 negation family (``text_guard``, ``clause_doubt``, ``insertion``) apply to every edited clause.
 Verbless sentences are edited as the negation family edits them ("So easy." -> "Not difficult.",
 "Great soup." -> "Not a bad soup."), noun phrases only with an article.
@@ -80,12 +81,17 @@ _NO_ARTICLE = frozenset({"staff", "personnel", "produce", "veg", "fruit", "bread
 
 def candidates(doc: "Doc", ctx: Context) -> Iterator[Candidate]:
     drop = _amplifiers(doc, ctx)
-    if not drop:
+    # A semicolon joins clauses as a comma does: one weakened clause among clauses of one polarity
+    # keeps the text's direction ("The coffee is great; the desks are clean"). The clause analysis
+    # reads a copy with commas (the shared guards refuse semicolons, for the negation family).
+    commas = {t.i: "," for t in tokens(doc) if t.text == ";"}
+    if not drop and not commas:
         yield from _candidates(doc, ctx)
         return
-    if text_guard(doc, ctx.lexicon) is not None:  # emphatic capitals, "so ... that" and the like
+    plain = _without(doc, set(), commas)[0] if commas else doc
+    if plain is None or text_guard(plain, ctx.lexicon) is not None:  # emphatic capitals, "so ... that"
         return
-    reduced, keep = _without(doc, set(drop))
+    reduced, keep = _without(doc, set(drop), commas)
     if reduced is None:
         return
     for cand in _candidates(reduced, ctx):
@@ -123,9 +129,9 @@ def _amplifiers(doc: "Doc", ctx: Context) -> dict[int, int]:
     return out
 
 
-def _without(doc: "Doc", drop: set[int]) -> "tuple[Doc | None, list[int]]":
-    """A copy of ``doc`` without the tokens ``drop`` (leaves of the parse), annotations kept, and
-    the source index of each token of the copy."""
+def _without(doc: "Doc", drop: set[int], replace: dict[int, str] | None = None) -> "tuple[Doc | None, list[int]]":
+    """A copy of ``doc`` without the tokens ``drop`` (leaves of the parse) and with the texts of
+    ``replace`` (punctuation only), annotations kept, and the source index of each token of the copy."""
     from spacy.tokens import Doc as SpacyDoc
 
     keep = [t.i for t in doc if t.i not in drop]
@@ -135,7 +141,7 @@ def _without(doc: "Doc", drop: set[int]) -> "tuple[Doc | None, list[int]]":
     words, spaces, tags, pos, deps, heads, lemmas, morphs = [], [], [], [], [], [], [], []
     for i in keep:
         t = doc[i]
-        words.append(t.text)
+        words.append((replace or {}).get(i, t.text))
         spaces.append(bool(t.whitespace_))
         tags.append(t.tag_)
         pos.append(t.pos_)
@@ -189,9 +195,6 @@ def _candidates(doc: "Doc", ctx: Context) -> Iterator[Candidate]:
         return
     if any(g.norm(t.text) in _ADDITIVE for t in tokens(doc)):
         return
-    for o in an.others:
-        if g.aux_kind(o.head) == "be" and any(c.dep_ in ("acomp", "attr") and c.pos_ in ("ADJ", "NOUN") for c in o.head.children):
-            return  # "... and the portions were small": an opinion the lexicon cannot see
     if not an.clauses:
         yield from _fragment(doc, an, lex)
         return

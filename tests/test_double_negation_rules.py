@@ -138,7 +138,10 @@ CASES = [
     ("The weather report disappointed me.", "double-negation/verb", "The weather report didn't impress me."),
     # ---- the rest of the text
     ("The kit is good when the poles arent bent.", NO, NO),  # a negation without apostrophe already in the text
-    ("The soup was tasty and the portions were small.", NO, NO),  # a plain clause may carry an unseen opinion
+    # a clause the lexicon cannot judge stays as it is (known limit: "small" here is a complaint
+    # the lexicon does not see; clauses of opposite opinion are mostly joined by "but", skipped below)
+    ("The soup was tasty and the portions were huge.", "double-negation/antonym", "The soup wasn't bland and the portions were huge."),
+    ("The soup was tasty, but the portions were small.", NO, NO),  # contrast
     # ---- "too" before a negative adjective is a degree word: dropped; elsewhere it means "also"
     ("Coffee is too expensive.", "double-negation/antonym", "Coffee isn't cheap."),
     ("The guide was too kind.", NO, NO),  # "too kind" is a polite hedge, not a degree of praise
@@ -168,6 +171,15 @@ CASES = [
     ("Great recipes.", NO, NO),  # a bare plural: "Not bad recipes." is no natural English
     ("The best tent.", NO, NO),  # superlative
     ("Excellent tent!", NO, NO),  # an exclamation (the negation family's fragment guard)
+    # ---- more common review adjectives (common usage: see the TSV header)
+    ("The fees are ridiculous.", "double-negation/antonym", "The fees aren't reasonable."),
+    ("The menu is repetitive.", "double-negation/antonym", "The menu isn't varied."),
+    ("The signal is patchy.", "double-negation/antonym", "The signal isn't reliable."),
+    ("Parking is impossible.", "double-negation/antonym", "Parking isn't easy."),
+    ("Parking is impossible to find.", NO, NO),  # an infinitive on the adjective: skipped, as "easy to set up"
+    # ---- a semicolon joins clauses as a comma does
+    ("The coffee is great; the desks are clean.", "double-negation/antonym", "The coffee is great; the desks aren't dirty."),
+    ("The coffee is great; the desks are dirty.", NO, NO),  # mixed polarity
     # ---- skipped
     ("The jacket is warm and light.", NO, NO),  # a list is edited as a whole: "warm" has no entry
     ("It's a comfortable tent.", "double-negation/prefix", "It's not an uncomfortable tent."),  # a/an chosen again
