@@ -708,7 +708,7 @@ def _adverbial(sent: "Span", ctx: Context) -> Iterator[Candidate]:
     root = sent.root
     if not _is_question(sent) and root.pos_ in ("NOUN", "ADJ"):
         yield from _fragment_stance(sent, root)
-        yield from _fragment_price(sent, root, ctx.lexicon)
+        yield from _fragment_price(sent, root)
     if _is_question(sent) or root.pos_ not in ("VERB", "AUX"):
         return
     if any(t.lower_ in CONTRAST and t.pos_ != "NOUN" for t in sent):
@@ -729,7 +729,7 @@ def _adverbial(sent: "Span", ctx: Context) -> Iterator[Candidate]:
     last = _last_word(sent)
     if last < 0:
         return
-    yield from _to_front(sent, root, subj, last, scoped, ctx.lexicon)
+    yield from _to_front(sent, root, subj, last, scoped)
     yield from _to_end(sent, root, subj, last, scoped)
 
 
@@ -765,15 +765,15 @@ def _fragment_stance(sent: "Span", root: "Token") -> Iterator[Candidate]:
                         {"direction": "to-front", "kind": "stance", "phrase": end.text})
 
 
-def _fragment_price(sent: "Span", root: "Token", lex) -> Iterator[Candidate]:
-    """"for the price" / "for the money" ending a verbless noun phrase with an opinion adjective
+def _fragment_price(sent: "Span", root: "Token") -> Iterator[Candidate]:
+    """"for the price" / "for the money" ending a verbless noun phrase with an adjective
     moves to the front ("Great food for the price." -> "For the price, great food.")."""
     doc = sent.doc
     last = _last_word(sent)
     if root.pos_ != "NOUN" or sent.start != root.left_edge.i or not (last + 1 < sent.end or sent.end == len(doc)):
         return
-    if not any(c.dep_ == "amod" and c.i < root.i and lex.lookup(c.lower_, "ADJ") is not None for c in root.children):
-        return
+    if not any(c.dep_ == "amod" and c.i < root.i and c.pos_ == "ADJ" for c in root.children):
+        return  # "great food", "small portions": a judgement the price frames
     tail = [c for c in root.children if c.i > root.i and not c.is_punct]
     if len(tail) != 1 or tail[0].dep_ != "prep" or tail[0].lower_ != "for" or tail[0].right_edge.i != last:
         return
@@ -800,7 +800,7 @@ def _not_a_clause(root: "Token", subj: "Token") -> bool:
     me out ...", "logging" with "Keeps" as its subject), or a subject that is a verbless phrase
     followed by a clause ("Super friendly couriers and the food is always cold": the first item
     has no article, a later one has)."""
-    if root.tag_ in ("VBG", "VBN") and not any(c.dep_ in ("aux", "auxpass") for c in root.children):
+    if root.tag_ == "VBG" and not any(c.dep_ in ("aux", "auxpass") for c in root.children):
         return True
     conj = _conjuncts(subj) if subj.pos_ == "NOUN" else [subj]
     if len(conj) > 1:
@@ -821,7 +821,7 @@ def _degree_too(tok: "Token") -> bool:
     return tok.lower_ == "too" and tok.head.pos_ in ("ADJ", "ADV") and tok.head.i == tok.i + 1
 
 
-def _final_phrase(root: "Token", last: int, lex=None) -> tuple["Token", "Token"] | None:
+def _final_phrase(root: "Token", last: int) -> tuple["Token", "Token"] | None:
     """The phrase that ends the clause, with its host: the main verb's last dependent, or the
     last dependent of a predicate adjective that ends the clause ("is great for the price")."""
     right = [c for c in root.children if c.i > root.i and not c.is_punct]
@@ -839,9 +839,7 @@ def _final_phrase(root: "Token", last: int, lex=None) -> tuple["Token", "Token"]
         if tail and tail[-1].dep_ in ("prep", "npadvmod", "advmod") and tail[-1].right_edge.i == last:
             return tail[-1], adv
         return None
-    if adv.dep_ == "attr" and adv.pos_ == "NOUN" and lex is not None and any(
-        c.dep_ == "amod" and lex.lookup(c.lower_, "ADJ") is not None for c in adv.children
-    ):
+    if adv.dep_ == "attr" and adv.pos_ == "NOUN" and any(c.dep_ == "amod" and c.pos_ == "ADJ" for c in adv.children):
         # "is a great choice for families": a "for" frame of an evaluative noun, not "value for money"
         tail = [c for c in adv.children if c.i > adv.i and not c.is_punct]
         if tail and tail[-1].dep_ == "prep" and tail[-1].lower_ == "for" and tail[-1].right_edge.i == last:
@@ -869,9 +867,9 @@ def _outside_negation(adv: "Token") -> bool:
     )
 
 
-def _to_front(sent: "Span", root: "Token", subj: "Token", last: int, scoped: str, lex) -> Iterator[Candidate]:
+def _to_front(sent: "Span", root: "Token", subj: "Token", last: int, scoped: str) -> Iterator[Candidate]:
     doc = sent.doc
-    found = _final_phrase(root, last, lex)
+    found = _final_phrase(root, last)
     if found is None or subj.left_edge.i != sent.start:
         return
     adv, host = found
