@@ -16,7 +16,29 @@ from pairflip.demo.models import MODEL_NAMES, load_sentences, trained
 def demo_files() -> list[str]:
     """The files ``run_demo`` writes into its folder (checked by the CLI before any work)."""
     skops = [f"{name}.skops" for name in MODEL_NAMES] if has_skops() else []
-    return [f"{name}.joblib" for name in MODEL_NAMES] + skops + ["suite.jsonl"] + [f"results-{name}.jsonl" for name in MODEL_NAMES]
+    return ([f"{name}.joblib" for name in MODEL_NAMES] + skops + ["domain.tsv", "suite.jsonl"]
+            + [f"results-{name}.jsonl" for name in MODEL_NAMES])
+
+
+def learn_demo_lexicon(path: Path, nlp: Any, log: Console) -> Path:
+    """What a user does with labelled text (``pairflip lexicon``): learn the domain's opinion words
+    from the demo's labelled reviews, write them to ``path`` and say how many."""
+    from pairflip.demo.models import demo_path
+    from pairflip.perturb.induce import induce_lexicon, open_labelled_corpus, write_lexicon
+    from pairflip.perturb.lexicon import load_lexicon
+
+    labelled = open_labelled_corpus(Path(str(demo_path("reviews.csv"))), label_column="label", label_field=None)
+    lex = induce_lexicon(labelled.texts(), nlp=nlp, known=load_lexicon())
+    try:
+        write_lexicon(lex, path, corpus="demo_data/reviews.csv", label_name=labelled.label_name,
+                      label_map=labelled.label_map.describe())
+    except OSError as err:
+        raise PairflipError(f"{path}: cannot write the demo's learned lexicon ({err.strerror or err})") from None
+    new = len(lex.written)
+    log.print(f"learned {len(lex.words)} opinion words from demo_data/reviews.csv ({new} not in the built-in lexicon "
+              f"or of the other polarity there, written to domain.tsv; `pairflip lexicon` does this for your text)",
+              markup=False, soft_wrap=True)
+    return path
 
 
 def has_skops() -> bool:
@@ -75,7 +97,11 @@ def run_demo(*, out_dir: Path | None, seed: int, examples: int, console: Console
         elif out_dir is not None:
             log.print('skops is not installed: the models are kept as .joblib only (pip install "pairflip[skops]" adds .skops files)', markup=False)
         t1 = time.perf_counter()
-        suite = build_suite(load_sentences(), seed=seed)
+        from pairflip.perturb.nlp import load_nlp
+
+        nlp = load_nlp()
+        domain = learn_demo_lexicon(out / "domain.tsv", nlp, log)
+        suite = build_suite(load_sentences(), seed=seed, nlp=nlp, lexicon_files=[str(domain)])
         suite.header["corpus"] = "demo_data/sentences.txt"
         write_suite(suite, out / "suite.jsonl")
         # A temporary folder is deleted when the demo ends: its paths are not worth printing.

@@ -96,6 +96,7 @@ class BuildStats:
     sources_with_pairs: int = 0  # texts that gave at least one pair
     sources_with_tested_pairs: int = 0  # texts that gave a pair with an expectation (not only diagnostic ones)
     diagnostic_pairs: int = 0  # pairs of diagnostic rules (should "none", e.g. reorder/shuffle)
+    learned_pairs: int = 0  # pairs whose sentence has its opinion from a learned lexicon's words only
     sentences: int = 0  # with unit "sentence": the distinct sentences made sources (or skipped)
     skipped: dict[str, int] = field(default_factory=lambda: Counter())  # reason -> count of sources
     made: Counter = field(default_factory=Counter)  # rule -> pairs
@@ -108,6 +109,7 @@ class BuildStats:
             "sources_with_pairs": self.sources_with_pairs,
             "sources_with_tested_pairs": self.sources_with_tested_pairs,
             "diagnostic_pairs": self.diagnostic_pairs,
+            "learned_pairs": self.learned_pairs,
             "sentences": self.sentences,
             "skipped": dict(self.skipped),
             "made": dict(self.made),
@@ -273,6 +275,7 @@ class TextCounter:
                 self.last[0] = text
                 stats.sources_with_pairs += 1
             stats.diagnostic_pairs += sum(1 for p in pairs if p.should == "none")
+            stats.learned_pairs += sum(1 for p in pairs if p.meta.get("learned"))
             if text != self.last[1] and any(p.should != "none" for p in pairs):
                 self.last[1] = text
                 stats.sources_with_tested_pairs += 1
@@ -468,6 +471,7 @@ def _pairs_for_doc(
         return
     # st.text is the doc's text; a sentence unit's id is its text's id and index
     source_id = st.id if by_rule else ""
+    learned = learned_opinions(doc, lexicon) if by_rule and module.FAMILY in OPINION_FAMILIES else []
     unit_keys = {"text_id": st.text_id, "sentence": st.index} if isinstance(st, SentenceSource) else None
     for rule in sorted(by_rule):
         cands = by_rule[rule]
@@ -502,9 +506,23 @@ def _pairs_for_doc(
                 edits=char_edits,
                 source_id=source_id,
                 label=st.label,
-                meta=dict(cand.meta),
+                meta={**cand.meta, "learned": learned} if learned else dict(cand.meta),
                 extra=dict(unit_keys) if unit_keys else {},
             )
+
+
+# Families whose pairs start from an opinion word (reorder moves words whatever they say).
+OPINION_FAMILIES = frozenset({"negation", "double-negation", "intensifier", "contrast"})
+
+
+def learned_opinions(doc: Any, lexicon: Lexicon) -> list[str]:
+    """The learned lexicon's words that carry an opinion in ``doc`` (a learned word counts only
+    in a sentence with no other opinion word, so a pair from such a sentence comes from it)."""
+    if not lexicon.has_learned:
+        return []
+    from pairflip.perturb.negation import opinion_of
+
+    return sorted({hit.word for t in doc if (hit := opinion_of(t, lexicon)) is not None and hit.learned})
 
 
 def _recheck(nlp: Any, doc: Any, cand: Candidate, variant: str) -> str | None:

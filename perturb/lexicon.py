@@ -90,6 +90,11 @@ class Lexicon:
                 return hit
         return None
 
+    @property
+    def has_learned(self) -> bool:
+        """Does any entry come from a learned lexicon (see :data:`LEARNED_MARK`)?"""
+        return any(e.learned for e in self.opinion.values()) or any(e.learned for e in self.phrases.values())
+
     def polarity(self, word: str, pos: str | None = None) -> int:
         hit = self.lookup(word, pos)
         return hit.polarity if hit else 0

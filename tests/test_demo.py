@@ -79,6 +79,17 @@ def test_demo_command_prints_all_families_for_each_model(tmp_path, capsys):
         assert (tmp_path / f"results-{name}.jsonl").exists()
         assert (tmp_path / f"{name}.joblib").exists()
     assert (tmp_path / "suite.jsonl").exists()
+    # the demo learns a domain lexicon from its labelled reviews before it builds, as a user would
+    domain = (tmp_path / "domain.tsv").read_text(encoding="utf-8")
+    assert domain.startswith("# Opinion words learned by `pairflip lexicon` from demo_data/reviews.csv")
+    from pairflip.files import read_suite
+
+    suite = read_suite(tmp_path / "suite.jsonl")
+    learned = [p for p in suite if p.meta.get("learned")]
+    assert learned, "no pair came from a learned word"
+    for p in learned:  # each names learned words that stand in its source and in domain.tsv
+        for w in p.meta["learned"]:
+            assert f"\n{w}\t" in domain and w in p.source.lower()
 
 
 def test_demo_without_out_dir_names_no_path_in_a_deleted_folder(capsys):
@@ -94,3 +105,4 @@ def test_demo_without_out_dir_names_no_path_in_a_deleted_folder(capsys):
     assert tempfile.gettempdir() not in out + err
     assert "--out-dir DIR keeps it" in " ".join(out.split())
     assert "gave a pair with an expectation" in err
+    assert "learned words only" in err and "opinion words from demo_data/reviews.csv" in err
