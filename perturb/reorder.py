@@ -9,7 +9,7 @@ Rules:
     amazing" -> "tastes amazing and looks great" (look, taste, smell, sound, feel, seem, work,
     each with its own complement and no auxiliary, negation or phrase that might be shared). A
     verbless comma list of noun phrases, each with its own opinion adjective and no article, also
-    rotates ("Great value, fast delivery." -> "Fast delivery, great value."). A conjunct is one word after its degree adverbs
+    rotates ("Fair prices, quick service." -> "Quick service, fair prices."). A conjunct is one word after its degree adverbs
     ("very light"), a noun after its own article, possessive, adjectives or compounds ("the calm
     water"), or an adjective with its own complement ("patient with the kids", "happy to help").
     When only the last conjunct has a complement it may belong to all of them ("quick and easy to
@@ -483,7 +483,7 @@ def _coordination(sent: "Span", ctx: Context) -> Iterator[Candidate]:
 
 def _verbless_list(sent: "Span", ctx: Context) -> Iterator[Candidate]:
     """A verbless sentence that is only a comma list of noun phrases, each with its own opinion
-    adjective and no article ("Great value, fast delivery." -> "Fast delivery, great value.").
+    adjective and no article ("Fair prices, quick service." -> "Quick service, fair prices.").
     spaCy parses the later items as appositions; an article ("Our host, a retired sailor") or an
     item without an opinion adjective is a real apposition and is left alone."""
     doc = sent.doc
@@ -576,14 +576,14 @@ def _coordination_ok(kind: str, conj: list["Token"], toks: list["Span"], texts: 
         if conj[0].dep_ in ("attr", "nsubj") and any(c.dep_ == "expl" for c in verb.children):
             return False  # "there is a pool and two saunas": the verb agrees with the first conjunct
         if conj[0].dep_ in ("nsubj", "nsubjpass") and len(set(det)) != 1:
-            return False  # "Great views and the rooms are clean": a fragment, then a clause, parsed as one subject
+            return False  # "Warm bread and the cakes are fresh": a fragment, then a clause, parsed as one subject
         after = toks[-1].end
         nxt = toks[-1].doc[after] if after < len(toks[-1].doc) else None
         above = {t.i for t in conj[0].ancestors}
         if nxt is not None and not nxt.is_punct and nxt.i not in above and not (
             nxt.head.i in above and nxt.dep_ in ("aux", "auxpass", "neg", "advmod", "cc")
         ):
-            return False  # "... in the mornings and the desk team remember you": the last "conjunct" is a clause's subject
+            return False  # "warm in the mornings and the bar staff know you": the last "conjunct" is a clause's subject
     elif len(toks) == 2 and (texts[0], texts[1]) in BINOMIALS:
         return False
     if texts[0] in HENDIADYS and kind == "adj":
@@ -640,7 +640,7 @@ def _adjunct(tok: "Token", root: "Token", host: "Token") -> bool:
         if word in ("on", "in") and noun.lower_ == "time" and not list(noun.children):
             return False  # "arrived on time", "in time": punctuality, not a time frame
         if noun.lower_ in DEVICE_NOUNS and not any(c.dep_ in ("acomp", "advmod", "attr", "dobj") for c in root.children):
-            return False  # "I've tried on two phones": at the front, the verb is left bare
+            return False  # "we have booked on three laptops": at the front, the verb is left bare
         if noun.lower_ in PLACE_NOUNS and lemma(root) in ARGUMENT_VERBS or \
                 noun.lower_ in DEVICE_NOUNS and lemma(root) in ARGUMENT_VERBS - {"work"}:
             return False  # "we stayed at the harbour": the place is the verb's argument
@@ -699,7 +699,7 @@ def _clause_adjunct(tok: "Token", root: "Token") -> bool:
     if len(sub) > 14:
         return False
     if any(t.dep_ == "pcomp" and t.pos_ == "VERB" for t in sub):
-        return False  # "when we're away without cancelling": the gerund may belong to the main clause
+        return False  # "when we travel without paying": the gerund may belong to the main clause
     return not any(t.is_punct and t.text not in ("'", "-") or t.dep_ in ("cc", "conj") or t.text[:1] in "@#" for t in sub)
 
 
@@ -796,9 +796,9 @@ def _fragment_price(sent: "Span", root: "Token") -> Iterator[Candidate]:
 
 
 def _not_a_clause(root: "Token", subj: "Token") -> bool:
-    """A parse that only looks like a clause: a bare participle as the main verb ("Keeps logging
-    me out ...", "logging" with "Keeps" as its subject), or a subject that is a verbless phrase
-    followed by a clause ("Super friendly couriers and the food is always cold": the first item
+    """A parse that only looks like a clause: a bare participle as the main verb ("Keeps freezing
+    my screen ...", "freezing" with "Keeps" as its subject), or a subject that is a verbless phrase
+    followed by a clause ("Kind skippers and the ferry is often late": the first item
     has no article, a later one has)."""
     if root.tag_ == "VBG" and not any(c.dep_ in ("aux", "auxpass") for c in root.children):
         return True
@@ -811,7 +811,7 @@ def _not_a_clause(root: "Token", subj: "Token") -> bool:
 
 def _name_like_start(sent: "Span") -> bool:
     """The sentence opens with a capitalised word tagged as a name: it may be a common noun
-    ("App crashes ...", "Quality has improved ..."), whose capital should not travel."""
+    ("Website freezes ...", "Booking is easy ..."), whose capital should not travel."""
     first = tokens(sent.doc)[sent.start]
     return first.pos_ == "PROPN" and first.text[:1].isupper() and not first.text.isupper()
 
@@ -879,7 +879,7 @@ def _to_front(sent: "Span", root: "Token", subj: "Token", last: int, scoped: str
     prev = tokens(doc)[a - 1]
     has_comma = prev.text == ","
     if any(t.text == "," and t.i != a - 1 for t in sent):
-        return  # "charged twice, 44.99 and 44.99 on the same day": an appended list, another comma's phrase
+        return  # "billed me twice, 3 and 3 on the same morning": an appended list, another comma's phrase
     sub = list(adv.subtree)
     if adv.dep_ == "advcl" or _every_time(adv):
         if scoped or not _clause_adjunct(adv, root):

@@ -156,7 +156,7 @@ CASES = [
     # verbless sentences: a sentence adverb at either end, "for the price" to the front
     ("Honestly, great value.", ADVL, {"Great value, honestly."}),
     ("Great value for the price, honestly.", ADVL, {"Honestly, great value for the price."}),
-    ("Sadly, not worth it.", ADVL, {"Not worth it, sadly."}),
+    ("Sadly, not worth the fare.", ADVL, {"Not worth the fare, sadly."}),
     ("Great food for the price.", ADVL, {"For the price, great food."}),
     ("Good value for money.", ADVL, set()),  # one phrase
     # devices and "from the start"
@@ -166,14 +166,14 @@ CASES = [
     ("I spent an hour on the phone.", ADVL, set()),  # "spend ... on": an argument
     ("I work at the cafe.", ADVL, set()),  # the place is the verb's argument
     # parses that only look like clauses, and capitals that should not travel
-    ("Keeps logging me out every time I close the app.", ADVL, set()),  # no subject: "Keeps" taken for one
-    ("Super friendly guides and the boat is always late when it rains.", ADVL, set()),  # a fragment, then a clause
-    ("App crashes every time I open the map.", ADVL, set()),  # "App" tagged as a name: its capital is unclear
-    ("I have tried on two different phones.", ADVL, set()),  # in front, "I have tried" is left bare
-    ("I can skip weeks when we are away without cancelling.", ADVL, set()),  # "without cancelling" is the main clause's
-    ("I got charged twice, 4 and 4 on the same day.", ADVL, set()),  # a phrase after an appended list
-    ("Mine is old and the menu takes ages to load.", CLAUSE, set()),  # "mine" would read as "my menu"
-    ("Tried wifi and mobile data.", COORD, set()),  # a verb taken for an adjective
+    ("Keeps freezing my screen every time I book a tour.", ADVL, set()),  # no subject: "Keeps" taken for one
+    ("Kind skippers and the ferry is often late when it storms.", ADVL, set()),  # a fragment, then a clause
+    ("Website freezes every time I pick a seat.", ADVL, set()),  # "Website" tagged as a name: its capital is unclear
+    ("We have booked on three different laptops.", ADVL, set()),  # in front, "we have booked" is left bare
+    ("We can pause the bread order when we travel without paying.", ADVL, set()),  # "without paying" is the main clause's
+    ("The bakery billed me twice, 3 and 3 on the same morning.", ADVL, set()),  # a phrase after an appended list
+    ("Ours is ancient and the booking page takes ages to open.", CLAUSE, set()),  # "ours" would read as "our booking page"
+    ("Tried jam and fresh cream.", COORD, set()),  # a verb taken for an adjective
     # adverbial clauses of time, condition and reason
     ("The room was ready when we arrived.", ADVL, {"When we arrived, the room was ready."}),
     ("When we arrived, the room was ready.", ADVL, {"The room was ready when we arrived."}),
@@ -227,10 +227,10 @@ CASES = [
     ("We loved the friendly guides and the calm water.", COORD, {"We loved the calm water and the friendly guides."}),
     ("Great food and a lovely view.", COORD, {"A lovely view and great food."}),  # the article is the view's own
     ("Great coffee and cake.", COORD, set()),  # "great" may cover both
-    ("Great views and the rooms are always clean.", COORD, set()),  # a fragment and a clause, not one subject
+    ("Warm bread and the cakes are always fresh.", COORD, set()),  # a fragment and a clause, not one subject
     ("The pool is warm in the mornings and the bar staff actually know your name.", COORD, set()),  # a clause's subject
-    ("The lockers are too small for a laptop bag and a helmet.", COORD, {"The lockers are too small for a helmet and a laptop bag."}),
-    ("Great value, fast delivery.", COORD, {"Fast delivery, great value."}),  # a verbless list
+    ("The cabins are too small for a suitcase and a pram.", COORD, {"The cabins are too small for a pram and a suitcase."}),
+    ("Fair prices, quick service.", COORD, {"Quick service, fair prices."}),  # a verbless list
     ("Friendly crew, calm sea, great lunch.", COORD, {"Calm sea, great lunch, friendly crew."}),
     ("Our host, a retired sailor.", COORD, set()),  # an apposition, not a list
     ("The fish and chips were great.", COORD, set()),  # bare nouns: often a fixed pair
