@@ -97,6 +97,7 @@ class BuildStats:
     sources_with_tested_pairs: int = 0  # texts that gave a pair with an expectation (not only diagnostic ones)
     diagnostic_pairs: int = 0  # pairs of diagnostic rules (should "none", e.g. reorder/shuffle)
     learned_pairs: int = 0  # pairs whose sentence has its opinion from a learned lexicon's words only
+    learned_lexicon: bool = False  # a learned lexicon (``pairflip lexicon``) was in use
     sentences: int = 0  # with unit "sentence": the distinct sentences made sources (or skipped)
     skipped: dict[str, int] = field(default_factory=lambda: Counter())  # reason -> count of sources
     made: Counter = field(default_factory=Counter)  # rule -> pairs
@@ -352,6 +353,7 @@ def iter_pairs(
     nlp = nlp if nlp is not None else load_nlp(spacy_model)
     lexicon = lexicon if lexicon is not None else load_lexicon()
     stats = stats if stats is not None else BuildStats()
+    stats.learned_lexicon = lexicon.has_learned
     max_len = getattr(nlp, "max_length", 1_000_000)
 
     def admitted() -> Iterator[tuple[str, SourceText]]:

@@ -168,6 +168,7 @@ def iter_pairs_ray(
     nlp = nlp if nlp is not None else load_nlp(spacy_model)
     lexicon = lexicon if lexicon is not None else load_lexicon()
     stats = stats if stats is not None else BuildStats()
+    stats.learned_lexicon = lexicon.has_learned
     if total is None and hasattr(texts, "__len__"):
         total = len(texts)  # type: ignore[arg-type]
     max_len = getattr(nlp, "max_length", 1_000_000)

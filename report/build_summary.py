@@ -35,9 +35,8 @@ def render_build_stats(stats: Any, output: Path | str | None, console: Console) 
         f"{stats.sources} source texts, {stats.sources_with_pairs} gave pairs, {tested} gave a pair with an expectation; "
         + pairs + (f"; skipped {skipped} source{'s' if skipped != 1 else ''} ({', '.join(stats.skipped)})" if skipped else "")
     )
-    learned = getattr(stats, "learned_pairs", 0)
-    if learned:
-        line += f"; {learned} from learned words only (meta \"learned\")"
+    if getattr(stats, "learned_lexicon", False):
+        line += f"; {stats.learned_pairs} from learned words only (meta \"learned\")"
     if output is not None:
         line += f"; wrote {output}"
     console.print(line, markup=False, highlight=False, soft_wrap=True)

@@ -273,6 +273,16 @@ def test_learned_words_count_only_in_sentences_without_a_built_in_opinion(tmp_pa
     assert opinion("The burner is skeevy.", "skeevy", [learned]).polarity == -1
     assert plan("The burner is skeevy.", [learned]) == "negation/copula"
     assert plan("The burner is skeevy.", []) == "no opinion"
+    # a build counts and names the pairs that come from learned words only
+    import pairflip
+
+    suite = pairflip.build_suite(["The burner is skeevy.", "The stove is reliable."], families=["negation"], nlp=nlp,
+                                 lexicon_files=[str(learned)])
+    assert [(p.source, p.meta.get("learned")) for p in suite] == [("The burner is skeevy.", ["skeevy"]),
+                                                                  ("The stove is reliable.", None)]
+    assert suite.stats.learned_pairs == 1 and suite.stats.learned_lexicon
+    # a learned noun or verb is a topic or an action of the corpus, never a sentence's opinion alone
+    assert opinion("The stove arrived.", "stove", [learned]) is None
 
 
 def test_pos_option_leaves_out_the_parts_of_speech_not_asked_for(shop, tmp_path):
@@ -457,9 +467,10 @@ def other_half_counts(snippet_halves, learned, nlp):
 @pytest.mark.external
 @pytest.mark.skipif(not external_data.enabled(), reason="set PAIRFLIP_EXTERNAL_DATA=1 to fetch the vaderSentiment sdist")
 def test_learned_lexicon_raises_negation_and_intensifier_pairs_on_the_other_half(other_half_counts):
-    """Measured 2026-12-03: negation 189 -> 206, intensifier 333 -> 335, double negation 52 -> 52.
-    Learned words count only in sentences with no built-in opinion word, so the topic words the
-    corpus ties to one side (camera, dvd, unit) no longer make opinion sentences mixed."""
+    """Measured 2026-12-03: negation 189 -> 190, intensifier 333 -> 335, double negation 86 -> 86.
+    Learned adjectives and adverbs count only in sentences with no built-in opinion word, and
+    learned nouns and verbs never alone, so the topic words the corpus ties to one side (camera,
+    dvd, unit) no longer make opinion sentences mixed, nor factual ones opinionated."""
     before, after = other_half_counts
     assert after["negation"] > before["negation"]
     assert after["intensifier"] > before["intensifier"]
