@@ -214,9 +214,10 @@ def _opinion_of(tok: "Token", lexicon: "Lexicon"):
 
 # Learned nouns and verbs are mostly the corpus's topics and actions ("dvd", "camera", "feature";
 # "try", "send", "return"): tied to one side by what was reviewed, not said in praise or blame.
-# Blind review round 10l: of 21 pairs that learned words alone gave on the vaderSentiment product
-# snippets, 16 came from such nouns and verbs and most were no opinion at all ("this is the
-# third dvd i bought"). They never carry a sentence's opinion; learned adjectives and adverbs do.
+# Of the 21 pairs that learned words alone gave on half of the vaderSentiment product snippets
+# (benchmarks/blind_review_learned.py, 2026-12-03), 18 came from such nouns and verbs, and on our
+# own reading only 5 of the 21 were right ("this is the third dvd i bought" has no opinion to
+# flip). They never carry a sentence's opinion; learned adjectives and adverbs may.
 LEARNED_TOPIC_POS = frozenset({"NOUN", "VERB"})
 
 
