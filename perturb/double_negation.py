@@ -24,20 +24,24 @@ What the rules edit:
 Degree words: an amplifier right on the edited word (very, really, so, super, extremely, pretty,
 quite, ...) is dropped, never kept: "very good" -> "not bad" (weaker, the same direction), where
 "not very bad" would grant that it is bad. So is "too" right before a negative adjective ("too
-expensive" -> "not cheap"); elsewhere "too" means "also" and the text is skipped. Softeners ("a bit", "slightly", "fairly") are not
-dropped: "a bit slow" -> "not fast" could be stronger; such clauses are skipped. Extreme words take
-the plain opposite of the other pole ("excellent" -> "not bad", "awful" -> "not good"); the
-opposite is never an extreme word itself ("not awful" only denies the worst and can read as a
-complaint).
+expensive" -> "not cheap"); elsewhere "too" means "also" and the text is skipped. Softeners ("a
+bit", "slightly", "fairly") are not dropped: "a bit slow" -> "not fast" could be stronger; such
+clauses are skipped. Extreme words take the plain opposite of the other pole ("excellent" -> "not
+bad", "awful" -> "not good"); the opposite is never an extreme word itself ("not awful" only
+denies the worst and can read as a complaint). The rules read a copy of the parse without the
+dropped amplifiers (and with commas for semicolons), so every guard judges the clause as edited.
+
+Verbless sentences are edited as the negation family edits them, with the opposite in place of the
+opinion adjective(s) ("So easy." -> "Not difficult.", "Great soup." -> "Not a bad soup."); noun
+phrases only with an article, and an adjective followed by nothing but "for ...".
 
 A text qualifies only when every opinion word in it has one polarity and the text holds no negation
-yet (else the new negation could meet an old one). Other clauses without an opinion word are left
-as they are, also when they may carry an opinion the lexicon does not know ("and the portions were
-small"): clauses of opposite opinion are most often joined by "but", which the shared guards skip,
-and the weakened clause keeps its direction. The shared precision guards of the
-negation family (``text_guard``, ``clause_doubt``, ``insertion``) apply to every edited clause.
-Verbless sentences are edited as the negation family edits them ("So easy." -> "Not difficult.",
-"Great soup." -> "Not a bad soup."), noun phrases only with an article.
+yet, also none without an apostrophe ("isnt"): the new negation could meet an old one. Other
+clauses without an opinion word are left as they are, also when they may carry an opinion the
+lexicon does not know ("and the portions were small"): clauses of opposite opinion are most often
+joined by "but", which the shared guards skip, and the weakened clause keeps its direction. A
+semicolon joins clauses as a comma does. The shared precision guards of the negation family
+(``text_guard``, ``clause_doubt``, ``insertion``) apply to every edited clause.
 """
 
 from __future__ import annotations
@@ -45,8 +49,7 @@ from __future__ import annotations
 from typing import TYPE_CHECKING, Iterator
 
 from pairflip.perturb import grammar as g
-from pairflip.perturb.base import NEGATORS, Candidate, Context, TokenEdit, match_case, tokens
-from pairflip.perturb.base import sents
+from pairflip.perturb.base import NEGATORS, Candidate, Context, TokenEdit, match_case, sents, tokens
 from pairflip.perturb.negation import (_article, analyse, clause_doubt, dropped_subject, insertion, opinion_of,
                                        or_for_and, predicate_opinion, text_guard)
 
