@@ -681,6 +681,10 @@ def _every_time(tok: "Token") -> bool:
     )
 
 
+def _reason(tok: "Token") -> bool:
+    return tok.lower_ in ("because", "due", "thanks") and tok.left_edge.i == tok.i
+
+
 def _clause_adjunct(tok: "Token", root: "Token") -> bool:
     """An adverbial clause of time, condition or reason that may stand at either end ("when we
     arrived", "if you like seafood", "because the staff are lovely")."""
@@ -878,7 +882,7 @@ def _to_front(sent: "Span", root: "Token", subj: "Token", last: int, scoped: str
     a = adv.left_edge.i
     prev = tokens(doc)[a - 1]
     has_comma = prev.text == ","
-    if any(t.text == "," and t.i != a - 1 for t in sent):
+    if any(t.is_punct and t.text not in ("'", "-") and t.i != a - 1 and t.i <= last for t in sent):
         return  # "billed me twice, 3 and 3 on the same morning": an appended list, another comma's phrase
     sub = list(adv.subtree)
     if adv.dep_ == "advcl" or _every_time(adv):
@@ -896,6 +900,8 @@ def _to_front(sent: "Span", root: "Token", subj: "Token", last: int, scoped: str
             return
         if stance and not has_comma and adv.lower_ != "overall":
             return  # "works honestly": a manner reading
+        if adv.lower_ in FRONTABLE_ONLY and any(t.lower_ == "for" or lemma(t) == "have" and t.dep_ == "aux" for t in sent):
+            return  # "have had it for three months now": "for ... now" is one span of time
         if adv.dep_ == "prep" and adv.lower_ == "for" and host.i == root.i and not any(t.lower_ in PRICE_NOUNS for t in sub):
             return  # "waited for an hour", "bought it for my son": durations and beneficiaries
         if any(t.dep_ in ("cc", "conj") or t.lower_ in ("about", "around", "roughly", "almost", "nearly") for t in sub):
@@ -935,8 +941,8 @@ def _to_end(sent: "Span", root: "Token", subj: "Token", last: int, scoped: str) 
     nxt = b + 1 if has_comma else b
     if subj.left_edge.i != nxt or nxt >= last:
         return
-    if any(t.text == "," and t.i != b for t in sent):
-        return
+    if any(t.is_punct and t.text not in ("'", "-") and t.i != b and t.i <= last for t in sent):
+        return  # "Recently, I went to a fair -- an event with ...": the phrase would land after an aside
     if not (last + 1 < sent.end or sent.end == len(doc)):
         return  # no closing punctuation to put the phrase before, and more text follows
     end_tok = tokens(doc)[last]
@@ -963,10 +969,14 @@ def _to_end(sent: "Span", root: "Token", subj: "Token", last: int, scoped: str) 
             return
         if adv.dep_ == "npadvmod" and any(t.like_num for t in sub):
             return
+        if adv.dep_ == "npadvmod" and adv.lower_ == "time":
+            return  # "every time the file is corrupt the system freezes": an opening "every time" heads a clause
         if any(t.pos_ in ("VERB", "AUX") or t.dep_ in ("relcl", "acl", "advcl", "mark") for t in sub):
             return
         if lemma(root) == "be" and not any(c.dep_ in ("acomp", "attr") for c in root.children):
             return
+        if _reason(adv) and _third_person(t for t in doc[nxt : last + 1]) and any(t.pos_ in ("NOUN", "PROPN") for t in sub):
+            return  # "because of the size of the drive, owners load it": at the end, "it" comes before its noun
         kind = "stance" if stance else "phrase"
     moved = _span_text(doc, sent.start, b, initial=False, was_initial=True)
     edits = [TokenEdit(sent.start, nxt, "")]

@@ -165,6 +165,11 @@ CASES = [
     ("The service has been great from the start.", ADVL, {"From the start, the service has been great."}),
     ("I spent an hour on the phone.", ADVL, set()),  # "spend ... on": an argument
     ("I work at the cafe.", ADVL, set()),  # the place is the verb's argument
+    ("Recently, we joined a harbour tour -- a trip past the seal colony.", ADVL, set()),  # would land after the aside
+    ("Every time the card reader fails the till locks up.", ADVL, set()),  # an opening "every time" heads a clause
+    ("We have had the bread box for two months now.", ADVL, set()),  # "for two months now" is one span
+    ("Because of the size of the cabin, guests can store bikes in it.", ADVL, set()),  # "it" would come before "the cabin"
+    ("Because of the fog, the ferry was late.", ADVL, {"The ferry was late because of the fog."}),
     # parses that only look like clauses, and capitals that should not travel
     ("Keeps freezing my screen every time I book a tour.", ADVL, set()),  # no subject: "Keeps" taken for one
     ("Kind skippers and the ferry is often late when it storms.", ADVL, set()),  # a fragment, then a clause
