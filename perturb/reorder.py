@@ -969,8 +969,8 @@ def _to_end(sent: "Span", root: "Token", subj: "Token", last: int, scoped: str) 
             return
         if adv.dep_ == "npadvmod" and any(t.like_num for t in sub):
             return
-        if adv.dep_ == "npadvmod" and adv.lower_ == "time":
-            return  # "every time the file is corrupt the system freezes": an opening "every time" heads a clause
+        if adv.dep_ == "npadvmod" and adv.lower_ == "time" and any(c.dep_ in ("ccomp", "parataxis", "advcl") for c in root.children):
+            return  # "every time the file is corrupt the system freezes": the opening "every time" heads a clause
         if any(t.pos_ in ("VERB", "AUX") or t.dep_ in ("relcl", "acl", "advcl", "mark") for t in sub):
             return
         if lemma(root) == "be" and not any(c.dep_ in ("acomp", "attr") for c in root.children):

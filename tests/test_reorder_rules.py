@@ -167,6 +167,8 @@ CASES = [
     ("I work at the cafe.", ADVL, set()),  # the place is the verb's argument
     ("Recently, we joined a harbour tour -- a trip past the seal colony.", ADVL, set()),  # would land after the aside
     ("Every time the card reader fails the till locks up.", ADVL, set()),  # an opening "every time" heads a clause
+    ("Each time I asked a different question.", ADVL, {"I asked a different question each time."}),
+    ("Next time we will book the early boat.", ADVL, {"We will book the early boat next time."}),
     ("We have had the bread box for two months now.", ADVL, set()),  # "for two months now" is one span
     ("Because of the size of the cabin, guests can store bikes in it.", ADVL, set()),  # "it" would come before "the cabin"
     ("Because of the fog, the ferry was late.", ADVL, {"The ferry was late because of the fog."}),
