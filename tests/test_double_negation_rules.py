@@ -110,8 +110,10 @@ CASES = [
     # ---- more common review adjectives, both directions
     ("The shuttle was late.", "double-negation/antonym", "The shuttle wasn't on time."),
     ("The guide was punctual.", "double-negation/antonym", "The guide wasn't late."),
-    ("The lantern is cheap.", "double-negation/antonym", "The lantern isn't expensive."),
-    ("The rooms are pricey.", "double-negation/antonym", "The rooms aren't cheap."),
+    # no entry for "cheap": the opinion lexicon reads it as a complaint (poor quality), and "not
+    # expensive" as praise, so the pair would reverse for a lexicon reader
+    ("The lantern is cheap.", NO, NO),
+    ("The rooms are pricey.", "double-negation/antonym", "The rooms aren't affordable."),
     ("The hike was painless.", "double-negation/antonym", "The hike wasn't painful."),
     ("The checkout was painful.", "double-negation/antonym", "The checkout wasn't painless."),
     ("The bread was soggy.", "double-negation/antonym", "The bread wasn't crisp."),
@@ -143,7 +145,7 @@ CASES = [
     ("The soup was tasty and the portions were huge.", "double-negation/antonym", "The soup wasn't bland and the portions were huge."),
     ("The soup was tasty, but the portions were small.", NO, NO),  # contrast
     # ---- "too" before a negative adjective is a degree word: dropped; elsewhere it means "also"
-    ("Coffee is too expensive.", "double-negation/antonym", "Coffee isn't cheap."),
+    ("Coffee is too expensive.", "double-negation/antonym", "Coffee isn't affordable."),
     ("The guide was too kind.", NO, NO),  # "too kind" is a polite hedge, not a degree of praise
     ("The pack is too heavy to carry.", NO, NO),  # "*isn't light to carry"
     ("The tent is good too.", NO, NO),  # additive "too": points at another clause
