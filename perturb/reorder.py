@@ -49,8 +49,11 @@ Rules:
     days"), "on time"; no "for" durations or beneficiaries ("waited for an hour", "bought it for
     my son"), no "value for money", not under verbs of duration, not a place with verbs of
     placement or motion ("stayed at the harbour"), not the predicate itself ("is in the garage").
-    Skipped: questions, imperatives, sentences with contrast words, mentions, hashtags, links or
-    colons, coordinated verbs (the phrase would cover one conjunct only); sentences with focus
+    Skipped: questions, imperatives, parses that only look like a clause ("Keeps freezing ...",
+    a verbless phrase and a clause taken for one subject), a name-tagged opening word whose
+    capital would travel, sentences with contrast words, mentions, hashtags, links or other
+    punctuation inside the clause (commas, colons, spaced dashes), coordinated verbs (the phrase
+    would cover one conjunct only), a sentence adverb that would end up after a "that" clause; sentences with focus
     words (only, even, just, also, too), and with negation unless the phrase is outside its
     scope (sentence adverbs, "since ...", "in my experience", "for the price"); a clause that
     would put a pronoun of the main clause before a noun it may refer to ("It crashes whenever I
@@ -681,6 +684,18 @@ def _every_time(tok: "Token") -> bool:
     )
 
 
+def _loose_punct(t: "Token") -> bool:
+    """Punctuation other than an apostrophe or a hyphen inside a word ("well-lit"); a spaced dash
+    counts ("... elsewhere - a minor quibble")."""
+    if not t.is_punct:
+        return False
+    if t.text == "'":
+        return False
+    if t.text == "-" and not t.whitespace_ and t.i > 0 and not t.doc[t.i - 1].whitespace_:
+        return False
+    return True
+
+
 def _reason(tok: "Token") -> bool:
     return tok.lower_ in ("because", "due", "thanks") and tok.left_edge.i == tok.i
 
@@ -882,7 +897,7 @@ def _to_front(sent: "Span", root: "Token", subj: "Token", last: int, scoped: str
     a = adv.left_edge.i
     prev = tokens(doc)[a - 1]
     has_comma = prev.text == ","
-    if any(t.is_punct and t.text not in ("'", "-") and t.i != a - 1 and t.i <= last for t in sent):
+    if any(_loose_punct(t) and t.i != a - 1 and t.i <= last for t in sent):
         return  # "billed me twice, 3 and 3 on the same morning": an appended list, another comma's phrase
     sub = list(adv.subtree)
     if adv.dep_ == "advcl" or _every_time(adv):
@@ -941,7 +956,7 @@ def _to_end(sent: "Span", root: "Token", subj: "Token", last: int, scoped: str) 
     nxt = b + 1 if has_comma else b
     if subj.left_edge.i != nxt or nxt >= last:
         return
-    if any(t.is_punct and t.text not in ("'", "-") and t.i != b and t.i <= last for t in sent):
+    if any(_loose_punct(t) and t.i != b and t.i <= last for t in sent):
         return  # "Recently, I went to a fair -- an event with ...": the phrase would land after an aside
     if not (last + 1 < sent.end or sent.end == len(doc)):
         return  # no closing punctuation to put the phrase before, and more text follows
@@ -978,6 +993,8 @@ def _to_end(sent: "Span", root: "Token", subj: "Token", last: int, scoped: str) 
         if _reason(adv) and _third_person(t for t in doc[nxt : last + 1]) and any(t.pos_ in ("NOUN", "PROPN") for t in sub):
             return  # "because of the size of the drive, owners load it": at the end, "it" comes before its noun
         kind = "stance" if stance else "phrase"
+    if stance and any(c.dep_ == "ccomp" for c in root.children):
+        return  # "Overall, I think that ...": at the end the adverb would seem to qualify the embedded clause
     moved = _span_text(doc, sent.start, b, initial=False, was_initial=True)
     edits = [TokenEdit(sent.start, nxt, "")]
     cap = _span_text(doc, nxt, nxt + 1, initial=True, was_initial=False)

@@ -168,6 +168,9 @@ CASES = [
     ("Recently, we joined a harbour tour -- a trip past the seal colony.", ADVL, set()),  # would land after the aside
     ("Every time the card reader fails the till locks up.", ADVL, set()),  # an opening "every time" heads a clause
     ("Each time I asked a different question.", ADVL, {"I asked a different question each time."}),
+    ("If you sail often, you can buy a better jacket elsewhere - a small quibble.", ADVL, set()),  # a spaced dash
+    ("Overall, I think that the tour needs a longer lunch stop.", ADVL, set()),  # "overall" would qualify the inner clause
+    ("Overall, I found the tour good value.", ADVL, {"I found the tour good value, overall."}),
     ("Next time we will book the early boat.", ADVL, {"We will book the early boat next time."}),
     ("We have had the bread box for two months now.", ADVL, set()),  # "for two months now" is one span
     ("Because of the size of the cabin, guests can store bikes in it.", ADVL, set()),  # "it" would come before "the cabin"
