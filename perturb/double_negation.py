@@ -50,7 +50,7 @@ from typing import TYPE_CHECKING, Iterator
 
 from pairflip.perturb import grammar as g
 from pairflip.perturb.base import NEGATORS, Candidate, Context, TokenEdit, match_case, sents, tokens
-from pairflip.perturb.negation import (_article, analyse, clause_doubt, dropped_subject, insertion, opinion_of,
+from pairflip.perturb.negation import (indefinite_for, analyse, clause_doubt, dropped_subject, insertion, opinion_of,
                                        or_for_and, predicate_opinion, text_guard)
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -283,7 +283,7 @@ def _attributive(cl: "Clause", lex, text_style: str | None) -> Iterator[Candidat
     if opp is None:
         return
     word, kind = opp
-    art = _article(word)
+    art = indefinite_for(word)
     if art is None:
         return
     rule = f"double-negation/{kind}"
@@ -387,7 +387,7 @@ def _fragment(doc: "Doc", an, lex) -> Iterator[Candidate]:
     if tok.i in {t.i for t in targets}:
         word = opps[[t.i for t in targets].index(tok.i)][0]
         if g.norm(prefix) in ("not a", "not an"):
-            art = _article(word)
+            art = indefinite_for(word)
             if art is None:
                 return
             prefix = prefix.split()[0] + " " + art

@@ -567,7 +567,7 @@ _DEGREE = {"very", "so", "too", "really", "especially", "extremely", "super", "i
            "totally", "completely", "highly", "particularly", "terribly", "awfully", "most", "more",
            "overly", "real", "that", "as"}
 # Mass nouns that take no article ("not poor quality", "not great value for the money").
-_MASS = {"quality", "value", "service", "sound", "performance", "software", "design", "packaging",
+_MASS = {"quality", "value", "service", "staff", "equipment", "furniture", "wifi", "sound", "performance", "software", "design", "packaging",
          "shipping", "delivery", "stuff", "price", "money", "fun", "advice", "help", "food",
          "weather", "music", "news", "support", "construction", "reception",
          "life", "audio", "graphics", "craftsmanship", "workmanship",
@@ -589,7 +589,7 @@ _ARTICLE_DETS = {"a", "an", "the", "my", "your", "our", "his", "her", "their"}
 _LEAD_POS = {"INTJ", "PUNCT", "ADV", "CCONJ", "SPACE"}
 
 
-def _article(word: str) -> str | None:
+def indefinite_for(word: str) -> str | None:
     """'a' or 'an' before ``word`` by its first sound, or None when the spelling cannot tell
     (digits, acronyms). Handbook fact: the article follows the sound, not the letter."""
     w = word.lower()
@@ -733,7 +733,7 @@ def fragment(sent, lexicon: "Lexicon") -> Fragment | str:
             return "negative bare noun phrase"  # "not poor customer service." is a hedge at best (blind review, round 4)
         words = "not"  # "Not great value for the price."
     else:
-        art = _article(first.text)
+        art = indefinite_for(first.text)
         if art is None:
             return "cannot choose the article"
         words = f"not {art}"

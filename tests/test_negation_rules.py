@@ -88,6 +88,7 @@ CASES = [
     ("Clean, quiet and cheap.", NO, NO),  # mixed polarity ("cheap" is a complaint in the lexicon)
     ("Nice and warm.", NO, NO),  # "nice and warm" = very warm
     ("Friendly and helpful staff.", NO, NO),  # adjectives on a noun: "not" would need an article
+    ("Friendly staff.", "negation/fragment", "Not friendly staff."),  # "staff" takes no article
     # ---- "no" before a missing thing (a plural or a mass noun): removing it leaves the thing there
     ("The shower has no hot water.", "negation/removal", "The shower has hot water."),
     ("I had no problems with the tent.", "negation/removal", "I had problems with the tent."),
