@@ -252,10 +252,11 @@ def _word_opinion(tok: "Token", lexicon: "Lexicon"):
         return None  # "as well"
     if g.norm(tok.text) == "like" and pos != "VERB":
         return None
-    if pos == "VERB" and lemma(tok).lower() == "work" and any(
-        c.dep_ == "nsubj" and g.norm(c.text) in _PERSONS for c in tok.children
-    ):
-        return None  # "I have worked internationally": a person's job, not a product that works
+    if pos == "VERB" and lemma(tok).lower() == "work" and (subj := _subject(tok)) is not None and \
+            subj.dep_ == "nsubj" and g.norm(subj.text) in _PERSONS:
+        return None  # "I have worked internationally", "gave up and worked on it myself": a person's work (round 10)
+    if pos == "VERB" and lemma(tok).lower() == "approve" and any(c.dep_ == "auxpass" for c in tok.children):
+        return None  # "My refund was approved": a step of a process, not an opinion (blind review, round 10)
     hit = lexicon.lookup(lemma(tok).lower(), pos) or lexicon.lookup(g.norm(tok.text), pos)
     if hit is None and pos == "NOUN" and g.norm(tok.text) not in _AMBIGUOUS_ADJ and not any(
         c.dep_ in ("det", "poss", "nummod", "amod", "compound") for c in tok.children
@@ -1035,6 +1036,15 @@ def removal(cl: Clause) -> list[TokenEdit] | str:
 # ---------------------------------------------------------------- the family
 
 
+def clause_polarities(cl: Clause, lexicon: "Lexicon") -> set[int]:
+    """The polarities a clause's opinion words give it as written (a negated one counts reversed;
+    a negated expected event is a complaint)."""
+    if cl.event:
+        return {-1}
+    sign = -1 if cl.negated else 1
+    return {sign * e.polarity for e in (opinion_of(t, lexicon) for t in cl.opinion) if e is not None}
+
+
 def doubtful(an: Analysis) -> str | None:
     """Why the text as a whole is not to be touched, or None."""
     if an.unsure or not (an.clauses or an.fragments):
@@ -1383,6 +1393,12 @@ def _insertion_guard(cl: Clause, main: list["Token"], lexicon: "Lexicon") -> str
         if any(g.norm(c.text) == "as" and c.dep_ == "advmod" for c in t.children):
             return "equative 'as ... as'"  # "doesn't sound just as good as": a comparison
     for t in cl.opinion:
+        h = t
+        while h.i != cl.head.i and h.head.i != h.i:
+            if h.dep_ == "pcomp" and h.tag_ == "VBG":
+                return f"opinion word {t.text!r} in an adverbial phrase"  # "bought it after feeling confident" (rounds 3, 10)
+            h = h.head
+    for t in cl.opinion:
         if t.i in keep or (t.dep_ == "amod" and t.head.i in keep):
             continue
         h = t
@@ -1574,6 +1590,10 @@ def plan(doc: "Doc", ctx: Context) -> "Candidate | str":
     why = doubtful(an)
     if why is not None:
         return why
+    if len({p for cl in an.clauses for p in clause_polarities(cl, ctx.lexicon)}) > 1:
+        return "mixed polarity across clauses"  # "The food is good, the service is slow": no clear opinion to flip (blind review, round 10)
+    if any(c.dep_ == "mark" for cl in an.clauses if cl.head.dep_ == "ROOT" for c in cl.head.children):
+        return "a subordinate clause read as the main one"  # "Once a jar broke, and they refunded it": the praise is elsewhere (round 10)
     by_head = {cl.head.i: cl for cl in an.clauses}
     # the complement of an opinion ("disappointed that it broke") goes with its governor
     clauses = [cl for cl in an.clauses if not (_embedded(cl) and _governor(cl.head, by_head) is not None)]

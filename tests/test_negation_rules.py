@@ -89,6 +89,14 @@ CASES = [
     ("Nice and warm.", NO, NO),  # "nice and warm" = very warm
     ("Friendly and helpful staff.", NO, NO),  # adjectives on a noun: "not" would need an article
     ("Friendly staff.", "negation/fragment", "Not friendly staff."),  # "staff" takes no article
+    # ---- blind review round 10: mixed texts, a subordinate clause parsed as the main one, a
+    # process step, a person's work
+    ("The food is good, the service is slow.", NO, NO),  # mixed: no clear opinion to flip
+    ("It was a rough week and it really cheered me up.", NO, NO),  # "cheer up" praises: mixed
+    ("Once a pole snapped, and they replaced it the same day.", NO, NO),  # "once" subordinates; the praise is the replacement
+    ("My refund was approved on the 2nd.", NO, NO),  # a step of a process, not an opinion
+    ("I gave up on support and worked on the fix myself.", NO, NO),  # a person's work, not a product that works
+    ("I bought the stove after feeling confident about the reviews.", NO, NO),  # the opinion sits in an adverbial phrase
     # ---- "no" before a missing thing (a plural or a mass noun): removing it leaves the thing there
     ("The shower has no hot water.", "negation/removal", "The shower has hot water."),
     ("I had no problems with the tent.", "negation/removal", "I had problems with the tent."),
@@ -136,10 +144,11 @@ CASES = [
     ("They're comfortable.", "negation/copula", "They're not comfortable."),
     ("It's great.", "negation/copula", "It's not great."),
     ("We're very satisfied.", "negation/copula", "We're not very satisfied."),
-    ("The tent is not cheap, and the zipper is not smooth.", "negation/removal", "The tent is cheap, and the zipper is smooth."),
+    ("The tent is not cheap, and the zipper is not smooth.", NO, NO),  # mixed (praise, complaint): no clear opinion to flip (round 10)
     # only the opinion clause is edited; a clause without an opinion word is left as it is
     ("The sleeping bag is warm, but it does not pack small.", NO, NO),  # a 'but' contrast: one side would stay
-    ("The lantern was not bright. The case is sturdy.", "negation/removal", "The lantern was bright. The case is not sturdy."),
+    ("The lantern was not bright. The case is sturdy.", NO, NO),  # mixed across sentences (round 10)
+    ("The lantern was not bright. The case is flimsy.", "negation/removal", "The lantern was bright. The case is not flimsy."),
     ("The zipper is smooth. It does not snag.", NO, NO),  # the second sentence keeps its unseen opinion
     ("I was very impressed.", "negation/copula", "I wasn't very impressed."),  # no style shown: contracted
     ("The tent is definitely worth the money.", "negation/copula", "The tent is definitely not worth the money."),
