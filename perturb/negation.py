@@ -1590,7 +1590,8 @@ def plan(doc: "Doc", ctx: Context) -> "Candidate | str":
     why = doubtful(an)
     if why is not None:
         return why
-    if len({p for cl in an.clauses for p in clause_polarities(cl, ctx.lexicon)}) > 1:
+    per_clause = [clause_polarities(cl, ctx.lexicon) for cl in an.clauses]
+    if all(len(p) <= 1 for p in per_clause) and len(set().union(*per_clause)) > 1:
         return "mixed polarity across clauses"  # "The food is good, the service is slow": no clear opinion to flip (blind review, round 10)
     if any(c.dep_ == "mark" for cl in an.clauses if cl.head.dep_ == "ROOT" for c in cl.head.children):
         return "a subordinate clause read as the main one"  # "Once a jar broke, and they refunded it": the praise is elsewhere (round 10)
