@@ -41,7 +41,9 @@ app = typer.Typer(
         "Test sentiment classifiers on minimal pairs.\n\n"
         "build: texts -> suite.jsonl;  score: suite + model -> results.jsonl;  "
         "show: results -> report;  gate: results -> exit code;  compare: two results files;  "
-        "audit: all of it in one go;  demo: the whole job on the bundled demo data."
+        "audit: all of it in one go;  demo: the whole job on the bundled demo data;  "
+        "vet: a person confirms pairs;  lexicon: labelled texts -> opinion words;  "
+        "augment: labelled texts -> counterfactual training rows."
     ),
     context_settings={"help_option_names": ["-h", "--help"]},
 )

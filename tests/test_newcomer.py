@@ -291,3 +291,11 @@ def test_gate_writes_the_exports_with_its_limits(star_results, tmp_path, capsys)
     assert code == 2 and "input" in err
     code, _, _ = run(["gate", star_results, "--limit", "negation.violation <= 0.10", "--junit", j, "--force"], capsys)
     assert code == 1
+
+
+def test_top_level_help_summary_names_every_command():
+    # the one-line map of the tool at the top of `pairflip -h` must not leave a command out
+    summary = cli.app.info.help.split("\n\n", 1)[1]
+    for command in cli.app.registered_commands:
+        name = command.name or command.callback.__name__
+        assert f"{name}:" in summary, name
