@@ -7,6 +7,7 @@ used product and tweet snippets whole); or a path to a corpus file pairflip read
 ``benchmarks/coverage/larder_texts.jsonl``), built at sentence unit. ``reorder/shuffle`` is left
 out (ungrammatical on purpose, no expectation).
 
+``--exclude DIR ...`` leaves out the pairs of earlier rounds' sheets (a fresh draw).
 ``--per-family negation=30,double-negation=20,...`` draws that many pairs of each family (a
 family with fewer pairs gives all it has); without it, ``--n`` pairs at random.
 
@@ -58,6 +59,8 @@ def main() -> None:
     ap.add_argument("--source", default="vader")
     ap.add_argument("--per-family", default="")
     ap.add_argument("--out", type=Path, default=OUT)
+    ap.add_argument("--exclude", type=Path, nargs="*", default=[],
+                    help="earlier round folders: their sheets' pairs are not drawn again")
     args = ap.parse_args()
 
     import pairflip
@@ -65,7 +68,9 @@ def main() -> None:
     texts = _texts(args.source)
     kw = {"unit": "sentence"} if "unit" in pairflip.build_suite.__code__.co_varnames else {}
     suite = pairflip.build_suite(texts, seed=0, **kw)
-    pool = [p for p in suite if p.should in PLAIN]
+    seen = {(d["first"], d["second"]) for folder in args.exclude
+            for d in map(json.loads, (folder / "sheet.jsonl").read_text(encoding="utf-8").splitlines())}
+    pool = [p for p in suite if p.should in PLAIN and (p.source, p.variant) not in seen]
     rng = random.Random(args.seed)
     if args.per_family:
         quota = {k: int(v) for k, v in (x.split("=") for x in args.per_family.split(","))}
