@@ -71,7 +71,7 @@ from typing import TYPE_CHECKING, Iterator
 
 from pairflip.perturb import grammar as g
 from pairflip.perturb.intensifier import _adverb_grade
-from pairflip.perturb.base import (NEGATORS, Candidate, Context, TokenEdit, lemma, linking_use, match_case, phrase_at,
+from pairflip.perturb.base import (NEGATORS, Candidate, Context, TokenEdit, doc_text, lemma, linking_use, match_case, phrase_at,
                                    sent_of, sents, tokens)
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -205,6 +205,9 @@ def opinion_of(tok: "Token", lexicon: "Lexicon"):
     return memo[i]
 
 
+_SCHEDULE_WORDS = frozenset("hours weekends weekdays nights days shifts mornings evenings overtime".split())
+
+
 def _opinion_of(tok: "Token", lexicon: "Lexicon"):
     hit = _lexicon_opinion(tok, lexicon)
     if hit is not None and hit.learned and (hit.pos in LEARNED_TOPIC_POS or core_opinion_in_sentence(tok, lexicon)):
@@ -255,6 +258,9 @@ def _word_opinion(tok: "Token", lexicon: "Lexicon"):
     if pos == "VERB" and lemma(tok).lower() == "work" and (subj := _subject(tok)) is not None and \
             subj.dep_ == "nsubj" and g.norm(subj.text) in _PERSONS:
         return None  # "I have worked internationally", "gave up and worked on it myself": a person's work (round 10)
+    if pos == "VERB" and lemma(tok).lower() == "work" and any(
+            t.like_num or g.norm(t.text) in _SCHEDULE_WORDS for c in tok.children if c.dep_ != "nsubj" for t in c.subtree):
+        return None  # "operators work 9-6", "work weekends": a schedule, not a product that works (round 11)
     if pos == "VERB" and lemma(tok).lower() == "approve" and any(c.dep_ == "auxpass" for c in tok.children):
         return None  # "My refund was approved": a step of a process, not an opinion (blind review, round 10)
     hit = lexicon.lookup(lemma(tok).lower(), pos) or lexicon.lookup(g.norm(tok.text), pos)
@@ -811,6 +817,22 @@ def predicate_opinion(cl: Clause) -> list["Token"]:
     return hits or cl.opinion
 
 
+def _in_a_phrase_only(cl: Clause, lexicon: "Lexicon") -> "Token | None":
+    """When no opinion word is on the predicate: one that sits inside a prepositional phrase
+    ("researching for an inexpensive unit"), else None."""
+    if any(t.i == cl.head.i or t.head.i == cl.head.i and t.dep_ in _PREDICATE_DEPS for t in cl.opinion):
+        return None
+    for t in cl.opinion:
+        if phrase_at(t, lexicon) is not None:
+            continue  # "arrived on time": the expression is the predicate's own adjunct
+        h = t
+        while h.i != cl.head.i and h.head.i != h.i:
+            if h.dep_ == "prep":
+                return t
+            h = h.head
+    return None
+
+
 # ---------------------------------------------------------------- insertion
 
 
@@ -959,6 +981,8 @@ def removal(cl: Clause) -> list[TokenEdit] | str:
     doc = head.doc
     if lemma(head).lower() in NEGATIVE_IDIOM_VERBS:
         return f"idiom 'can't {head.text}'"  # "can't complain" is praise; "can complain" is no English
+    if head.tag_ == "VBG" and any(g.aux_word(a) in ("can", "could") for a in cl.auxes) and any(g.norm(a.text) == "be" for a in cl.auxes):
+        return "'can't be ...ing' has no positive"  # "*I can be answering the door that late" (round 11)
     if lemma(head).lower() == "help" and any(g.aux_word(a) in ("can", "could") for a in cl.auxes) and any(
             c.dep_ in ("xcomp", "ccomp", "cc", "prep") or c.tag_ == "VBG" for c in head.children):
         return "idiom 'can't help'"  # "couldn't help noticing": "could help noticing" is no English
@@ -1034,6 +1058,32 @@ def removal(cl: Clause) -> list[TokenEdit] | str:
 
 
 # ---------------------------------------------------------------- the family
+
+
+def _off_predicate(cl: Clause) -> "Token | None":
+    """An opinion word of the clause that hangs from a noun off its predicate ("..., unhelpful
+    customer service" after "does not function"): toggling the clause leaves it standing."""
+    keep = {t.i for t in predicate_opinion(cl)} | {cl.head.i}
+    for t in cl.opinion:
+        if t.i in keep or (t.dep_ == "amod" and t.head.i in keep):
+            continue
+        h = t.head
+        while h.i != cl.head.i and h.head.i != h.i:
+            if h.pos_ in ("NOUN", "PROPN") and h.i not in keep and h.dep_ not in ("dobj", "attr", "nsubjpass"):
+                return t
+            h = h.head
+    return None
+
+
+def _comma_which(cl: Clause) -> bool:
+    """Is this clause a non-restrictive relative one (", which ...")?"""
+    first = cl.subj
+    return first is not None and g.norm(first.text) == "which" and first.i > 0 and first.doc[first.i - 1].text == ","
+
+
+def _past_report(cl: Clause) -> bool:
+    """A clause in a past tense: a past verb, or a past auxiliary ("had melted", "was missing")."""
+    return cl.head.tag_ == "VBD" or any(a.tag_ == "VBD" for a in cl.auxes)
 
 
 def clause_polarities(cl: Clause, lexicon: "Lexicon") -> set[int]:
@@ -1373,6 +1423,14 @@ def _insertion_guard(cl: Clause, main: list["Token"], lexicon: "Lexicon") -> str
             return "'at times'"
     if cl.subj is not None and cl.subj.dep_ == "expl":
         return "existential 'there'"  # "there is also not a lack": wants "no"
+    if any(c.dep_ == "nsubj" and c.i > cl.head.i for c in cl.head.children) and not any("?" in t.text for t in cl.own):
+        return "inverted clause"  # "boy was i wrong" -> "*boy wasn't i wrong" (round 11)
+    if lemma(cl.head).lower() not in _HAVE_BE | {"come"} and (t := _in_a_phrase_only(cl, lexicon)) is not None:
+        return f"opinion word {t.text!r} only inside a phrase"  # "i'm researching for an inexpensive unit" (round 11)
+    if any(g.norm(x.text) in ("less", "fewer") for x in cl.own):
+        return "a comparative of quantity"  # "waste far less food" -> "*don't waste far less food" (round 11)
+    if any(g.aux_word(a) in ("would", "could") for a in cl.auxes) and lemma(cl.head).lower() in ("help", "improve", "make"):
+        return "a suggestion ('would help')"  # "Numbered steps would help a lot": a request (round 11)
     if cl.auxes and g.aux_word(cl.auxes[0]) == "can" and g.base_form(cl.head) == "be":
         return "'can be' states a possibility"  # "this can be a problem" -> "can't be a problem" is no opposite
     if any(g.norm(x.text) in ("about", "around", "roughly") and x.head.dep_ in ("pobj", "npadvmod", "prep") or
@@ -1586,6 +1644,11 @@ def plan(doc: "Doc", ctx: Context) -> "Candidate | str":
     why = text_guard(doc, ctx.lexicon)  # cheap whole-text checks first: most skips end here
     if why is not None:
         return why
+    low = doc_text(doc).lower()
+    if "to say the least" in low:
+        return "emphatic frame 'to say the least'"  # "*weren't devastated to say the least" (round 11)
+    if any(g.norm(t.text) in ("hope", "hoping", "hoped", "hopes", "hopefully") for t in tokens(doc)):
+        return "a wish ('hope')"  # "return it and hope for the best": no opinion to negate (round 11)
     an = analyse(doc, ctx.lexicon)
     why = doubtful(an)
     if why is not None:
@@ -1632,6 +1695,8 @@ def plan(doc: "Doc", ctx: Context) -> "Candidate | str":
                 c.dep_ == "conj" and c.i in own_ids for c in t.head.children
             ):
                 return "contrast inside one predicate"  # "stiff at first but comfortable later": contrast inside one predicate
+        if cl.negated and _off_predicate(cl) is not None:
+            return f"removal: opinion word {_off_predicate(cl).text!r} off the predicate"  # "does not function, unhelpful service" (round 11)
         if cl.negated:
             res = removal(cl)
             if isinstance(res, str):
@@ -1670,9 +1735,15 @@ def plan(doc: "Doc", ctx: Context) -> "Candidate | str":
         edits.extend(fr.edits)
         inserted += fr.inserted
         removed += fr.removed
+    opinion_heads = {cl.head.i for cl in an.clauses}
     for o in an.others:
-        if not _embedded(o) and g.aux_kind(o.head) == "be" and any(c.dep_ in ("acomp", "attr") and c.pos_ in ("ADJ", "NOUN") for c in o.head.children):
-            return "a plain clause may carry an unseen opinion"  # "and it is mostly idiot proof"
+        if not _embedded(o) and g.aux_kind(o.head) == "be" and any(c.dep_ in ("acomp", "attr") and c.pos_ in ("ADJ", "NOUN", "ADV") for c in o.head.children):
+            return "a plain clause may carry an unseen opinion"  # "and it is mostly idiot proof", "was five hours late" (round 11)
+        if not _embedded(o) and _past_report(o) and (o.subj is None or g.norm(o.subj.text) not in _PERSONS | {"they"}) and (
+                o.head.head.i in opinion_heads and o.head.dep_ == "conj" or any(c.dep_ == "conj" and c.i in opinion_heads for c in o.head.children)):
+            return "a plain clause may carry an unseen opinion"  # "and the butter had melted", "and glass got into the pasta" (round 11)
+        if (o.negs or o.other_negs) and o.head.dep_ in ("relcl", "advcl") and _comma_which(o):
+            return "a negated clause left as it is"  # "..., which isnt always": a complaint the lexicon cannot see (round 11)
         if not _embedded(o) and o.head.tag_ == "VBN" and any(c.dep_ == "auxpass" for c in o.head.children) \
                 and not any(c.dep_ in ("dobj", "agent") for c in o.head.children):
             return "a plain clause may carry an unseen opinion"  # "our kids were devastated"

@@ -97,6 +97,22 @@ CASES = [
     ("My refund was approved on the 2nd.", NO, NO),  # a step of a process, not an opinion
     ("I gave up on support and worked on the fix myself.", NO, NO),  # a person's work, not a product that works
     ("I bought the stove after feeling confident about the reviews.", NO, NO),  # the opinion sits in an adverbial phrase
+    # ---- blind review round 11 (a fresh draw): a plain past clause beside the opinion, a
+    # suggestion, "can't be -ing", comparatives of quantity, inversions, schedules, an opinion only
+    # inside a phrase or off the predicate, wishes, emphatic frames, a non-restrictive negated clause
+    ("The pot was dented and water got into the bag.", NO, NO),  # "water got into the bag" is a complaint the lexicon cannot see
+    ("The pot was dented and the lid had cracked.", "negation/copula", "The pot wasn't dented and the lid hadn't cracked."),  # both seen
+    ("The fuel was leaking and the box got soaked.", NO, NO),
+    ("Clearer photos would help a lot.", NO, NO),  # a suggestion, not an opinion
+    ("I can't be waiting in all day.", NO, NO),  # "*I can be waiting in all day"
+    ("We use far less gas now.", NO, NO),  # "*don't use far less gas"
+    ("boy was i wrong about this tent.", NO, NO),  # inverted exclamative
+    ("The guides work weekends.", NO, NO),  # a schedule, not a product that works
+    ("I'm shopping for a cheap stove.", NO, NO),  # the opinion word sits only inside the phrase
+    ("Doesn't zip properly, unhelpful staff.", NO, NO),  # "unhelpful staff" would stay
+    ("I'll send it back and hope for the best.", NO, NO),  # a wish
+    ("The stove didn't light, and we were furious to say the least.", NO, NO),  # emphatic frame
+    ("The tent is good when the pegs hold, which isn't often.", NO, NO),  # the complaint is in the which-clause
     # ---- "no" before a missing thing (a plural or a mass noun): removing it leaves the thing there
     ("The shower has no hot water.", "negation/removal", "The shower has hot water."),
     ("I had no problems with the tent.", "negation/removal", "I had problems with the tent."),
