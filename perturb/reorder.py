@@ -642,8 +642,9 @@ def _adjunct(tok: "Token", root: "Token", host: "Token") -> bool:
             return False
         if word in ("on", "in") and noun.lower_ == "time" and not list(noun.children):
             return False  # "arrived on time", "in time": punctuality, not a time frame
-        if word in ("on", "off", "in", "out", "up", "down") and lemma(root) in ARGUMENT_VERBS and any(
-                c.dep_ == "dobj" and c.i < tok.i for c in root.children):
+        if word in ("on", "off") and lemma(root) in ARGUMENT_VERBS and any(
+                c.dep_ == "dobj" and c.i < tok.i for c in root.children) and any(
+                c.lower_ in ("all", "most", "every", "each") for c in noun.subtree):
             return False  # "leave the filter on all the time": "on" goes with the verb (blind review, round 10)
         if noun.lower_ in DEVICE_NOUNS and not any(c.dep_ in ("acomp", "advmod", "attr", "dobj") for c in root.children):
             return False  # "we have booked on three laptops": at the front, the verb is left bare

@@ -59,6 +59,7 @@ CASES = [
     ("We had corned beef on rye and matzoh ball soup.", COORD, set()),
     ("I leave the lantern on all night.", ADVL, set()),  # "on" goes with "leave" (blind review, round 10)
     ("We keep the fly off most days.", ADVL, {"Most days, we keep the fly off."}),  # the particle stays with "keep"
+    ("We will take this tent on our next trip.", ADVL, {"On our next trip, we will take this tent."}),  # a real preposition
     ("It has s-video and composite outputs.", COORD, set()),
     ("#map apps and mobile users love maps.", COORD, set()),
     ("No cables and no batteries needed.", COORD, {"No batteries and no cables needed."}),  # each has its own "no"
