@@ -263,6 +263,8 @@ def _word_opinion(tok: "Token", lexicon: "Lexicon"):
         return None  # "operators work 9-6", "work weekends": a schedule, not a product that works (round 11)
     if pos == "VERB" and lemma(tok).lower() == "approve" and any(c.dep_ == "auxpass" for c in tok.children):
         return None  # "My refund was approved": a step of a process, not an opinion (blind review, round 10)
+    if pos == "NOUN" and tok.dep_ == "compound" and tok.head.pos_ in ("NOUN", "PROPN"):
+        return None  # "a lemon chicken dish": a noun naming a kind, not "a lemon" (round 12)
     hit = lexicon.lookup(lemma(tok).lower(), pos) or lexicon.lookup(g.norm(tok.text), pos)
     if hit is None and pos == "NOUN" and g.norm(tok.text) not in _AMBIGUOUS_ADJ and not any(
         c.dep_ in ("det", "poss", "nummod", "amod", "compound") for c in tok.children
@@ -1007,6 +1009,8 @@ def removal(cl: Clause) -> list[TokenEdit] | str:
         n = g.norm(x.text)
         if n in ("until", "till", "til"):
             return f"time frame {x.text!r}"  # "didn't arrive until Friday" -> "*arrived until Friday"
+        if n == "since" and x.dep_ == "prep" and not any(g.aux_kind(a) == "have" for a in cl.auxes):
+            return "time frame 'since' without a perfect"  # "*will load since the update" (round 12)
         if n == "yet" and x.dep_ == "advmod" and x.head.i == head.i and x.i > head.i:
             # "hasn't arrived yet" -> "has arrived": "yet" goes with the negation
             extra.append(TokenEdit(x.i, x.i + 1, ""))
@@ -1427,6 +1431,9 @@ def _insertion_guard(cl: Clause, main: list["Token"], lexicon: "Lexicon") -> str
         return "inverted clause"  # "boy was i wrong" -> "*boy wasn't i wrong" (round 11)
     if lemma(cl.head).lower() not in _HAVE_BE | {"come"} and (t := _in_a_phrase_only(cl, lexicon)) is not None:
         return f"opinion word {t.text!r} only inside a phrase"  # "i'm researching for an inexpensive unit" (round 11)
+    for t in cl.opinion:
+        if t.pos_ == "ADJ" and t.dep_ in ("advcl", "npadvmod", "dep", "oprd") and t.i > 0 and t.doc[t.i - 1].text == ",":
+            return f"a depictive {t.text!r} after a comma"  # "Found it the next day, warm." (round 12)
     if any(g.norm(x.text) in ("less", "fewer") for x in cl.own):
         return "a comparative of quantity"  # "waste far less food" -> "*don't waste far less food" (round 11)
     if any(g.aux_word(a) in ("would", "could") for a in cl.auxes) and lemma(cl.head).lower() in ("help", "improve", "make"):
@@ -1739,7 +1746,7 @@ def plan(doc: "Doc", ctx: Context) -> "Candidate | str":
     for o in an.others:
         if not _embedded(o) and g.aux_kind(o.head) == "be" and any(c.dep_ in ("acomp", "attr") and c.pos_ in ("ADJ", "NOUN", "ADV") for c in o.head.children):
             return "a plain clause may carry an unseen opinion"  # "and it is mostly idiot proof", "was five hours late" (round 11)
-        if not _embedded(o) and _past_report(o) and (o.subj is None or g.norm(o.subj.text) not in _PERSONS | {"they"}) and (
+        if not _embedded(o) and _past_report(o) and (o.subj is None or g.norm(o.subj.text) not in _PERSONS) and (
                 o.head.head.i in opinion_heads and o.head.dep_ == "conj" or any(c.dep_ == "conj" and c.i in opinion_heads for c in o.head.children)):
             return "a plain clause may carry an unseen opinion"  # "and the butter had melted", "and glass got into the pasta" (round 11)
         if (o.negs or o.other_negs) and o.head.dep_ in ("relcl", "advcl") and _comma_which(o):

@@ -113,6 +113,12 @@ CASES = [
     ("I'll send it back and hope for the best.", NO, NO),  # a wish
     ("The stove didn't light, and we were furious to say the least.", NO, NO),  # emphatic frame
     ("The tent is good when the pegs hold, which isn't often.", NO, NO),  # the complaint is in the which-clause
+    # ---- blind review round 12
+    ("Half the stoves were out of stock and they sent others without asking me.", NO, NO),  # a plain past act of "they"
+    ("It was a lemon chicken dish.", NO, NO),  # "lemon" names a kind of chicken here
+    ("The app won't load since the update.", NO, NO),  # "*will load since the update"
+    ("The app hasn't worked since the update.", "negation/removal", "The app has worked since the update."),  # with a perfect it stands
+    ("Found it the next day, warm.", NO, NO),  # a depictive after a comma
     # ---- "no" before a missing thing (a plural or a mass noun): removing it leaves the thing there
     ("The shower has no hot water.", "negation/removal", "The shower has hot water."),
     ("I had no problems with the tent.", "negation/removal", "I had problems with the tent."),
