@@ -1619,6 +1619,10 @@ def clause_doubt(cl: Clause, lexicon: "Lexicon", coordination: bool = False) -> 
             if not cl.negated and g.norm(x.text) in _FREQUENCY_OK and _all_positive(cl, lexicon):
                 continue  # "is always helpful" -> "isn't always helpful": no longer praise
             return f"hedge {x.text!r}"  # "didn't work almost perfectly"; "doesn't constantly crash" still complains
+    if any(g.aux_word(a) == "would" for a in cl.auxes) and g.base_form(cl.head) == "be" and cl.subj is not None and (
+            any(c.dep_ == "det" and g.norm(c.text) in ("a", "an", "some", "more") for c in cl.subj.children)
+            or cl.subj.tag_ == "NNS" and not any(c.dep_ in ("det", "poss") for c in cl.subj.children)):
+        return "a suggestion ('a ... would be nice')"  # "A waiting area would be nice": a wish (blind review, round 13)
     main = _main_opinion(cl, lexicon)
     if not main:
         return "no opinion word on the predicate"  # "the worst attack was led by ...": a factual claim

@@ -119,6 +119,10 @@ CASES = [
     ("The app won't load since the update.", NO, NO),  # "*will load since the update"
     ("The app hasn't worked since the update.", "negation/removal", "The app has worked since the update."),  # with a perfect it stands
     ("Found it the next day, warm.", NO, NO),  # a depictive after a comma
+    # ---- blind review round 13 (the Harbour Lane corpus)
+    ("A drying room for wet kit would be nice.", NO, NO),  # a suggestion, not an opinion
+    ("More pegs would be great.", NO, NO),  # a suggestion
+    ("The tent would be perfect for kids.", "negation/modal", "The tent wouldn't be perfect for kids."),  # a definite subject: an opinion
     # ---- "no" before a missing thing (a plural or a mass noun): removing it leaves the thing there
     ("The shower has no hot water.", "negation/removal", "The shower has hot water."),
     ("I had no problems with the tent.", "negation/removal", "I had problems with the tent."),
