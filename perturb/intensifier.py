@@ -375,12 +375,12 @@ def _as_well(tok: "Token") -> bool:
 
 
 def _opinion_tokens(doc: "Doc", lex: "Lexicon") -> Iterator[tuple["Token", "OpinionWord"]]:
-    from pairflip.perturb.negation import LEARNED_TOPIC_POS, core_opinion_in_sentence  # (negation imports this module)
+    from pairflip.perturb.negation import learned_silenced  # (negation imports this module)
 
     for tok in tokens(doc):
         sp = phrase_at(tok, lex)
         if sp is not None:  # "waste of money": one opinion, on the expression's head
-            if sp.head == tok.i and not (sp.entry.learned and (sp.entry.pos in LEARNED_TOPIC_POS or core_opinion_in_sentence(tok, lex))):
+            if sp.head == tok.i and not learned_silenced(tok, sp.entry, lex):
                 yield tok, sp.entry
             continue
         if tok.tag_ in ("JJR", "JJS", "RBR", "RBS"):
@@ -394,7 +394,7 @@ def _opinion_tokens(doc: "Doc", lex: "Lexicon") -> Iterator[tuple["Token", "Opin
                 hit = lex.lookup(tok.lower_, "ADJ")
         if hit is not None and hit.context == "alone" and linking_use(tok, lex):
             continue  # "smells fresh": a linking verb, the complement carries the opinion
-        if hit is not None and hit.learned and (hit.pos in LEARNED_TOPIC_POS or core_opinion_in_sentence(tok, lex)):
+        if hit is not None and learned_silenced(tok, hit, lex):
             continue  # a learned word counts only where no other lexicon word gives an opinion
         if hit is not None and tok.lower_ not in lex.intensifiers:
             yield tok, hit

@@ -92,8 +92,14 @@ class Lexicon:
 
     @property
     def has_learned(self) -> bool:
-        """Does any entry come from a learned lexicon (see :data:`LEARNED_MARK`)?"""
-        return any(e.learned for e in self.opinion.values()) or any(e.learned for e in self.phrases.values())
+        """Does any entry come from a learned lexicon (see :data:`LEARNED_MARK`)? Asked once per
+        text by the build, so the answer is kept until an entry is added."""
+        size = (len(self.opinion), len(self.phrases))
+        cached = self.__dict__.get("_has_learned")
+        if cached is None or cached[0] != size:
+            found = any(e.learned for e in self.opinion.values()) or any(e.learned for e in self.phrases.values())
+            cached = self.__dict__["_has_learned"] = (size, found)
+        return cached[1]
 
     def polarity(self, word: str, pos: str | None = None) -> int:
         hit = self.lookup(word, pos)

@@ -210,9 +210,16 @@ _SCHEDULE_WORDS = frozenset("hours weekends weekdays nights days shifts mornings
 
 def _opinion_of(tok: "Token", lexicon: "Lexicon"):
     hit = _lexicon_opinion(tok, lexicon)
-    if hit is not None and hit.learned and (hit.pos in LEARNED_TOPIC_POS or core_opinion_in_sentence(tok, lexicon)):
-        return None  # a learned word counts only where no other lexicon word gives an opinion
+    if hit is not None and learned_silenced(tok, hit, lexicon):
+        return None
     return hit
+
+
+def learned_silenced(tok: "Token", hit, lexicon: "Lexicon") -> bool:
+    """Is ``hit`` a learned word that carries no opinion here? A learned noun or verb never does
+    (see :data:`LEARNED_TOPIC_POS`), a learned adjective or adverb only where no other lexicon
+    word gives the sentence an opinion."""
+    return hit.learned and (hit.pos in LEARNED_TOPIC_POS or core_opinion_in_sentence(tok, lexicon))
 
 
 # Learned nouns and verbs are mostly the corpus's topics and actions ("dvd", "camera", "feature";
@@ -398,6 +405,11 @@ _GET_OBJECTS = frozenset("refund reply response answer confirmation email call o
                          "delivery receipt invoice update callback credit replacement money".split())
 
 
+def _particles(head: "Token") -> set[str]:
+    """The verb's particles, with an adverb right after it ("called back" is parsed so)."""
+    return {g.norm(c.text) for c in head.children if c.dep_ == "prt" or (c.dep_ == "advmod" and c.i == head.i + 1)}
+
+
 def _negated_event(cl: "Clause") -> bool:
     """Is this clause a negated expected event, whose negation carries the opinion?"""
     head = cl.head
@@ -421,7 +433,7 @@ def _negated_event(cl: "Clause") -> bool:
         return any(c.dep_ == "prt" and g.norm(c.text) in ("on", "up") for c in head.children)
     if verb == "work" and cl.subj is not None and g.norm(cl.subj.text) in _PERSONS:
         return False  # "I don't work weekends": a person's job
-    prts = {g.norm(c.text) for c in head.children if c.dep_ == "prt" or (c.dep_ == "advmod" and c.i == head.i + 1)}
+    prts = _particles(head)
     if verb in _EVENT_PARTICLES:
         return bool(prts & _EVENT_PARTICLES[verb])  # "never called back", "can't log in"
     if verb in _EVENT_PREPS:  # "can't speak to a human", not "I don't speak Spanish"
@@ -444,7 +456,7 @@ MASS_NOUNS = frozenset(
     "information help support advice feedback communication compensation service food milk sauce "
     "seasoning flavour flavor taste salt sugar stock variety value furniture equipment luggage "
     "packaging insulation ventilation air sound progress news notice contact warmth shade soap "
-    "paper ice change protection padding grip traction ventilation".split())
+    "paper ice change protection padding grip traction".split())
 
 
 def no_object(cl: "Clause") -> "Token | None":
@@ -819,6 +831,14 @@ def predicate_opinion(cl: Clause) -> list["Token"]:
     return hits or cl.opinion
 
 
+def _up_to(tok: "Token", head: "Token") -> Iterator["Token"]:
+    """``tok`` and its heads, up to (not including) ``head`` or the root of the sentence."""
+    h = tok
+    while h.i != head.i and h.head.i != h.i:
+        yield h
+        h = h.head
+
+
 def _in_a_phrase_only(cl: Clause, lexicon: "Lexicon") -> "Token | None":
     """When no opinion word is on the predicate: one that sits inside a prepositional phrase
     ("researching for an inexpensive unit"), else None."""
@@ -827,11 +847,8 @@ def _in_a_phrase_only(cl: Clause, lexicon: "Lexicon") -> "Token | None":
     for t in cl.opinion:
         if phrase_at(t, lexicon) is not None:
             continue  # "arrived on time": the expression is the predicate's own adjunct
-        h = t
-        while h.i != cl.head.i and h.head.i != h.i:
-            if h.dep_ == "prep":
-                return t
-            h = h.head
+        if any(h.dep_ == "prep" for h in _up_to(t, cl.head)):
+            return t
     return None
 
 
@@ -1071,11 +1088,9 @@ def _off_predicate(cl: Clause) -> "Token | None":
     for t in cl.opinion:
         if t.i in keep or (t.dep_ == "amod" and t.head.i in keep):
             continue
-        h = t.head
-        while h.i != cl.head.i and h.head.i != h.i:
-            if h.pos_ in ("NOUN", "PROPN") and h.i not in keep and h.dep_ not in ("dobj", "attr", "nsubjpass"):
-                return t
-            h = h.head
+        if any(h.i != t.i and h.pos_ in ("NOUN", "PROPN") and h.i not in keep and h.dep_ not in ("dobj", "attr", "nsubjpass")
+               for h in _up_to(t, cl.head)):
+            return t
     return None
 
 
@@ -1458,19 +1473,13 @@ def _insertion_guard(cl: Clause, main: list["Token"], lexicon: "Lexicon") -> str
         if any(g.norm(c.text) == "as" and c.dep_ == "advmod" for c in t.children):
             return "equative 'as ... as'"  # "doesn't sound just as good as": a comparison
     for t in cl.opinion:
-        h = t
-        while h.i != cl.head.i and h.head.i != h.i:
-            if h.dep_ == "pcomp" and h.tag_ == "VBG":
-                return f"opinion word {t.text!r} in an adverbial phrase"  # "bought it after feeling confident" (rounds 3, 10)
-            h = h.head
+        if any(h.dep_ == "pcomp" and h.tag_ == "VBG" for h in _up_to(t, cl.head)):
+            return f"opinion word {t.text!r} in an adverbial phrase"  # "bought it after feeling confident" (rounds 3, 10)
     for t in cl.opinion:
         if t.i in keep or (t.dep_ == "amod" and t.head.i in keep):
             continue
-        h = t
-        while h.i != cl.head.i and h.head.i != h.i:
-            if h.i != t.i and h.pos_ in ("NOUN", "PROPN") and h.i not in keep:
-                return f"opinion word {t.text!r} off the predicate"  # "love reinforcement for my vulgar behavior"
-            h = h.head
+        if any(h.i != t.i and h.pos_ in ("NOUN", "PROPN") and h.i not in keep for h in _up_to(t, cl.head)):
+            return f"opinion word {t.text!r} off the predicate"  # "love reinforcement for my vulgar behavior"
         if t.pos_ in ("NOUN", "PROPN") and t.dep_ in ("pobj", "conj", "appos"):
             return f"opinion word {t.text!r} off the predicate"  # "bright, easy to see, with nice colors"
     for t in main:
@@ -1706,8 +1715,9 @@ def plan(doc: "Doc", ctx: Context) -> "Candidate | str":
                 c.dep_ == "conj" and c.i in own_ids for c in t.head.children
             ):
                 return "contrast inside one predicate"  # "stiff at first but comfortable later": contrast inside one predicate
-        if cl.negated and _off_predicate(cl) is not None:
-            return f"removal: opinion word {_off_predicate(cl).text!r} off the predicate"  # "does not function, unhelpful service" (round 11)
+        off = _off_predicate(cl) if cl.negated else None
+        if off is not None:
+            return f"removal: opinion word {off.text!r} off the predicate"  # "does not function, unhelpful service" (round 11)
         if cl.negated:
             res = removal(cl)
             if isinstance(res, str):
