@@ -596,6 +596,10 @@ _MASS = {"quality", "value", "service", "staff", "equipment", "furniture", "wifi
          "crap", "junk", "garbage", "trash", "rubbish", "shit", "bullshit", "luck", "timing",
          "equipment", "gear", "storage", "memory", "feedback", "communication", "technology",
          "hardware", "imaging", "bass", "access"}
+# Count nouns with a mass-noun ending: they take "a" ("Not a pleasant experience.", round 14).
+_COUNTABLE_SUFFIXED = {"experience", "relationship", "booking", "meeting", "building", "ending",
+                       "instance", "entrance", "appliance", "sentence", "conference", "residence",
+                       "painting", "wedding", "outing", "offering", "fitting", "recording"}
 # Greetings and formulas ("Happy birthday!", "Good morning"): no opinion to reverse.
 _FORMULA_NOUNS = {"morning", "night", "evening", "afternoon", "luck", "birthday", "bday", "anniversary",
                   "holiday", "holidays", "christmas", "xmas", "thanksgiving", "easter", "halloween",
@@ -681,6 +685,8 @@ def fragment(sent, lexicon: "Lexicon") -> Fragment | str:
     negs = [t for t in toks if g.norm(t.text) in _ALL_NEG or t.dep_ == "neg" or g.norm(t.text).endswith("n't")]
     if any(c.dep_ in ("conj", "appos", "cc") for c in root.children) or any(t.dep_ in ("dep", "parataxis") for t in toks):
         return "coordinated or loose phrases"
+    if any(t.dep_ == "appos" and t.i > 0 and any(u.text == "," for u in sent if root.i < u.i < t.i) for t in toks):
+        return "a second phrase after a comma"  # "Fine for flat rides, hard work on the hill" (round 14)
     sub = sorted(root.subtree, key=lambda t: t.i)
     phrase = [t for t in sub if not is_noise(t) and not t.is_punct]
     if not phrase or phrase[0].i > root.i:
@@ -748,8 +754,9 @@ def fragment(sent, lexicon: "Lexicon") -> Fragment | str:
     elif any(t.tag_ == "JJS" or g.norm(t.text) in ("best", "worst") or (g.norm(t.text) == "most" and t.dep_ == "advmod")
              for t in phrase if t.i < root.i):
         words = "not the"
-    elif root.tag_ in ("NNS", "NNPS") or g.norm(root.text) in _MASS or lemma(root).lower() in _MASS or \
-            g.norm(root.text).endswith(("ity", "ness", "ance", "ence", "ship", "ism", "ics", "ing")):
+    elif root.tag_ in ("NNS", "NNPS") or g.norm(root.text) in _MASS or lemma(root).lower() in _MASS or (
+            g.norm(root.text).endswith(("ity", "ness", "ance", "ence", "ship", "ism", "ics", "ing"))
+            and g.norm(root.text) not in _COUNTABLE_SUFFIXED):
         if opinion_of(op, lexicon).polarity < 0:  # op is the fragment's opinion word
             return "negative bare noun phrase"  # "not poor customer service." is a hedge at best (blind review, round 4)
         words = "not"  # "Not great value for the price."
@@ -1038,6 +1045,11 @@ def removal(cl: Clause) -> list[TokenEdit] | str:
             return f"negative-polarity word {x.text!r}"
         if n in _MINIMISERS and x.i > 0 and g.norm(tokens(doc)[x.i - 1].text) == "a":
             return f"minimiser 'a {x.text}'"
+    if any(g.norm(d.text) in ("this", "that", "so") and d.i + 1 < len(doc) and tokens(doc)[d.i + 1].pos_ in ("ADV", "ADJ")
+           for d in cl.own) and any(
+            g.norm(t.text) == "since" and (t.head.i == head.i or t.head.head.i == head.i) for t in head.subtree):
+        # "haven't shifted this well since I bought it" is praise: removal keeps the praise (round 14)
+        return "'not this well since' compares with the past"
     nxt = tokens(doc)[neg.i + 1] if neg.i + 1 < len(doc) else None
     if no is not None:
         if nxt is not None and g.norm(nxt.text) in ("more", "less", "other", "longer", "such", "fewer", "real", "way"):
@@ -1440,6 +1452,10 @@ def _insertion_guard(cl: Clause, main: list["Token"], lexicon: "Lexicon") -> str
             return f"'{n} than'"  # "i am not more than pleased"
         if n == "times" and x.i > 0 and g.norm(tokens(doc)[x.i - 1].text) == "at":
             return "'at times'"
+        if n in ("least", "most") and x.i > 0 and g.norm(tokens(doc)[x.i - 1].text) == "at":
+            # "at least" is a positive-polarity item (Huddleston & Pullum 2002, ch. 9): "*doesn't
+            # crash at least once a week" (round 14)
+            return f"'at {n}'"
     if cl.subj is not None and cl.subj.dep_ == "expl":
         return "existential 'there'"  # "there is also not a lack": wants "no"
     if any(c.dep_ == "nsubj" and c.i > cl.head.i for c in cl.head.children) and not any("?" in t.text for t in cl.own):
@@ -1632,6 +1648,10 @@ def clause_doubt(cl: Clause, lexicon: "Lexicon", coordination: bool = False) -> 
             any(c.dep_ == "det" and g.norm(c.text) in ("a", "an", "some", "more") for c in cl.subj.children)
             or cl.subj.tag_ == "NNS" and not any(c.dep_ in ("det", "poss") for c in cl.subj.children)):
         return "a suggestion ('a ... would be nice')"  # "A waiting area would be nice": a wish (blind review, round 13)
+    for c in cl.head.children:
+        if c.dep_ == "advcl" and lemma(c).lower() in ("work", "function", "behave") and any(
+                m.dep_ in ("mark", "advmod") and g.norm(m.text) in ("when", "if", "whenever") for m in c.children):
+            return "'when it works' makes the praise backhanded"  # "handy when it works" (round 14)
     main = _main_opinion(cl, lexicon)
     if not main:
         return "no opinion word on the predicate"  # "the worst attack was led by ...": a factual claim

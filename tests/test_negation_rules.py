@@ -391,6 +391,15 @@ CASES = [
     ("The screen is a plus, as are the pegs.", "negation/copula", None),  # an elliptical echo
     ("The stove is great.", "negation/copula", "The stove isn't great."),  # "great": read as the opposite when negated
     ("The tent is good. The stove is nice.", "negation/copula", "The tent isn't good. The stove isn't nice."),
+    # blind review, round 14 (Harbour Lane), each failure with a control that still toggles
+    ("My gears haven't shifted this well since I bought the bike.", NO, NO),  # "not this well since": praise
+    ("The stove hasn't lit since the trip.", "negation/removal", "The stove has lit since the trip."),
+    ("Fine for flat paths, hard work on the hill.", NO, NO),  # a second phrase after a comma: mixed
+    ("The stove fails at least once a week.", NO, NO),  # "at least" is a positive-polarity item
+    ("Pleasant experience.", "negation/fragment", "Not a pleasant experience."),  # a count noun ending in -ence
+    ("Great service.", "negation/fragment", "Not great service."),  # a mass noun: no article
+    ("The lamp is handy when it works.", NO, NO),  # "when it works": backhanded
+    ("I'm a qualified guide looking for work.", NO, NO),  # a credential, not an opinion
 ]
 
 
