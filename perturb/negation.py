@@ -334,8 +334,20 @@ def _is_finite_head(tok: "Token") -> bool:
         return True
     if tok.tag_ in ("VBZ", "VBP", "VBD"):
         return True
+    if _never_past(tok):
+        return True  # "Never called back.": a past form the tagger read as a participle
     # a base-form verb with its own subject and no auxiliary: a tagger slip for VBP ("I love")
     return tok.tag_ == "VB" and any(c.dep_ in _SUBJ_DEPS for c in tok.children) and tok.dep_ != "xcomp"
+
+
+def _never_past(tok: "Token") -> bool:
+    """A subjectless root participle right after a sentence-initial "never" ("Never called back.",
+    "Never answered emails."): review style for "(They) never called back"."""
+    if tok.tag_ not in ("VBN", "VBD") or tok.dep_ != "ROOT" or any(c.dep_ in _SUBJ_DEPS or c.dep_ in _AUX_DEPS for c in tok.children):
+        return False
+    prev = tok.doc[tok.i - 1] if tok.i > 0 else None
+    return prev is not None and g.norm(prev.text) == "never" and prev.head.i == tok.i and (
+        prev.i == sent_of(tok).start or all(t.is_punct or is_noise(t) for t in tok.doc[sent_of(tok).start:prev.i]))
 
 
 def _subject(head: "Token") -> "Token | None":
@@ -396,7 +408,8 @@ EVENT_VERBS = frozenset(
     "come match understand help care exist cancel reach contact speak talk log sign install download "
     "pair scan track cook heat dry drain stick include support allow bother send call pick run play".split())
 # Extra conditions on some of them (table cases in tests/test_negation_rules.py):
-_EVENT_PARTICLES = {"call": {"back"}, "pick": {"up"}, "log": {"in", "on"}, "sign": {"in", "up", "on"}}
+_EVENT_PARTICLES = {"call": {"back"}, "pick": {"up"}, "log": {"in", "on"}, "sign": {"in", "up", "on"},
+                    "hear": {"back"}, "ring": {"back"}, "write": {"back"}}
 _EVENT_PREPS = {"speak": {"to", "with"}, "talk": {"to", "with"}}
 # Verbs whose negation goes with "again" in a refusal to come back ("we won't order from them again").
 _RETURN_VERBS = frozenset("order buy shop use book come go sail stay fly eat return visit recommend".split())
@@ -425,6 +438,8 @@ def _negated_event(cl: "Clause") -> bool:
     words_ = {g.norm(x.text) for x in cl.own}
     if verb in _RETURN_VERBS and "again" in words_:
         return True
+    if verb in _EVENT_PARTICLES:
+        return bool(_particles(head) & _EVENT_PARTICLES[verb])  # "never called back", "can't log in"
     if verb not in EVENT_VERBS:
         return False
     if verb == "get":
@@ -434,8 +449,6 @@ def _negated_event(cl: "Clause") -> bool:
     if verb == "work" and cl.subj is not None and g.norm(cl.subj.text) in _PERSONS:
         return False  # "I don't work weekends": a person's job
     prts = _particles(head)
-    if verb in _EVENT_PARTICLES:
-        return bool(prts & _EVENT_PARTICLES[verb])  # "never called back", "can't log in"
     if verb in _EVENT_PREPS:  # "can't speak to a human", not "I don't speak Spanish"
         return any(c.dep_ == "prep" and g.norm(c.text) in _EVENT_PREPS[verb] for c in head.children)
     if verb == "run" and prts:
@@ -589,13 +602,13 @@ _DEGREE = {"very", "so", "too", "really", "especially", "extremely", "super", "i
            "overly", "real", "that", "as"}
 # Mass nouns that take no article ("not poor quality", "not great value for the money").
 _MASS = {"quality", "value", "service", "staff", "equipment", "furniture", "wifi", "sound", "performance", "software", "design", "packaging",
-         "shipping", "delivery", "stuff", "price", "money", "fun", "advice", "help", "food",
+         "shipping", "delivery", "stuff", "money", "fun", "advice", "help", "food",
          "weather", "music", "news", "support", "construction", "reception",
          "life", "audio", "graphics", "craftsmanship", "workmanship",
          "material", "clarity", "resolution", "functionality", "usability", "coffee", "taste",
          "crap", "junk", "garbage", "trash", "rubbish", "shit", "bullshit", "luck", "timing",
          "equipment", "gear", "storage", "memory", "feedback", "communication", "technology",
-         "hardware", "imaging", "bass", "access"}
+         "hardware", "imaging", "bass", "access", "produce", "fruit", "bread", "meat", "parking"}
 # Count nouns with a mass-noun ending: they take "a" ("Not a pleasant experience.", round 14).
 _COUNTABLE_SUFFIXED = {"experience", "relationship", "booking", "meeting", "building", "ending",
                        "instance", "entrance", "appliance", "sentence", "conference", "residence",
@@ -665,6 +678,10 @@ def fragment(sent, lexicon: "Lexicon") -> Fragment | str:
         ops.remove(root)  # "Great value.": the noun agrees with its adjective
     if len(ops) > 1 and root.pos_ == "ADJ":
         listed = _adjective_list(sent, root, toks, ops, lexicon)
+        if listed is not None:
+            return listed
+    if len(ops) > 1 and root.pos_ == "NOUN":
+        listed = _noun_phrase_list(sent, root, toks, ops, lexicon)
         if listed is not None:
             return listed
     if len(ops) != 1:
@@ -748,24 +765,88 @@ def fragment(sent, lexicon: "Lexicon") -> Fragment | str:
         if len(negs) == 1 and g.norm(negs[0].text) == "not" and negs[0].i == first.i:
             return Fragment(root, [TokenEdit(first.i, first.i + 1, "")], 0, 1)  # "Not a great buy." -> "A great buy."
         return "negation in the fragment"
-    doc = root.doc
-    if g.norm(first.text) in _ARTICLE_DETS:
-        words = "not"
-    elif any(t.tag_ == "JJS" or g.norm(t.text) in ("best", "worst") or (g.norm(t.text) == "most" and t.dep_ == "advmod")
-             for t in phrase if t.i < root.i):
-        words = "not the"
-    elif root.tag_ in ("NNS", "NNPS") or g.norm(root.text) in _MASS or lemma(root).lower() in _MASS or (
-            g.norm(root.text).endswith(("ity", "ness", "ance", "ence", "ship", "ism", "ics", "ing"))
-            and g.norm(root.text) not in _COUNTABLE_SUFFIXED):
-        if opinion_of(op, lexicon).polarity < 0:  # op is the fragment's opinion word
-            return "negative bare noun phrase"  # "not poor customer service." is a hedge at best (blind review, round 4)
-        words = "not"  # "Not great value for the price."
-    else:
-        art = indefinite_for(first.text)
-        if art is None:
-            return "cannot choose the article"
-        words = f"not {art}"
+    words = _not_words(first, root, [t for t in phrase if t.i < root.i], opinion_of(op, lexicon).polarity)
+    if words.startswith("!"):
+        return words[1:]
     return Fragment(root, [_not_before(first, words)], 1, 0)
+
+
+def _not_words(first: "Token", noun: "Token", before: list["Token"], polarity: int) -> str:
+    """What goes before the noun phrase that starts at ``first`` to negate it: "not", "not a",
+    "not the" (or "!" and the reason there is none). ``before``: the phrase's words before its noun."""
+    if g.norm(first.text) in _ARTICLE_DETS:
+        return "not"
+    if any(t.tag_ == "JJS" or g.norm(t.text) in ("best", "worst") or (g.norm(t.text) == "most" and t.dep_ == "advmod")
+           for t in before):
+        return "not the"
+    if noun.tag_ in ("NNS", "NNPS") or g.norm(noun.text) in _MASS or lemma(noun).lower() in _MASS or (
+            g.norm(noun.text).endswith(("ity", "ness", "ance", "ence", "ship", "ism", "ics", "ing"))
+            and g.norm(noun.text) not in _COUNTABLE_SUFFIXED):
+        if polarity < 0:
+            return "!negative bare noun phrase"  # "not poor customer service." is a hedge at best (blind review, round 4)
+        return "not"  # "Not great value for the price."
+    art = indefinite_for(first.text)
+    if art is None:
+        return "!cannot choose the article"
+    return f"not {art}"
+
+
+def _noun_phrase_list(sent, root: "Token", toks: list["Token"], ops: list["Token"], lexicon: "Lexicon") -> "Fragment | None":
+    """A verbless list of noun phrases, each an opinion adjective on its noun, all of one polarity
+    ("Great value, fast delivery.", "Friendly staff and fair prices."): each phrase gets its own
+    "not" ("Not great value, not fast delivery.", "Not friendly staff and not fair prices."), so
+    the negation plainly covers every item. None when the sentence is anything more than that list."""
+    doc = root.doc
+    items = [root]
+    for t in root.subtree:
+        if t.dep_ in ("conj", "appos") and t.pos_ == "NOUN" and t.head.i in {x.i for x in items}:
+            items.append(t)
+    if len(items) < 2:
+        return None
+    ids = {t.i for t in items}
+    edits: list[TokenEdit] = []
+    adjs = []
+    for noun in items:
+        amods = [c for c in noun.children if c.dep_ == "amod"]
+        if len(amods) != 1 or amods[0].i > noun.i or amods[0].tag_ != "JJ" or opinion_of(amods[0], lexicon) is None:
+            return None
+        adj = amods[0]
+        for c in noun.children:
+            if c.i == adj.i or c.dep_ in ("punct", "cc") or c.i in ids:
+                continue
+            if c.dep_ == "det" and g.norm(c.text) in ("a", "an") and c.i < adj.i:
+                continue
+            if c.dep_ == "compound" and adj.i < c.i < noun.i and opinion_of(c, lexicon) is None:
+                continue
+            return None
+        if any(not c.is_punct for c in adj.children):
+            return None  # "really good range": a degree word under the negation reads as a hedge
+        phrase = sorted([x for x in noun.subtree if x.i not in ids and not any(x.i in {y.i for y in i2.subtree} for i2 in items if i2.i != noun.i and i2.i in {a.i for a in noun.subtree})] + [noun], key=lambda x: x.i)
+        phrase = [x for x in phrase if not x.is_punct and x.dep_ != "cc"]
+        first = phrase[0]
+        words = _not_words(first, noun, [x for x in phrase if x.i < noun.i], opinion_of(adj, lexicon).polarity)
+        if words.startswith("!"):
+            return None
+        edits.append(_not_before(first, words))
+        adjs.append(adj)
+    if {t.i for t in ops} - ({a.i for a in adjs} | ids):
+        return None  # an opinion word outside the phrases' adjectives
+    pols = {opinion_of(t, lexicon).polarity for t in ops}
+    if pols != {1}:
+        return None  # "Good coffee, bad chairs": mixed; a list of complaints stays as it is (see _not_words)
+    for t in toks:
+        if t.i in ids or any(t.i == a.i for a in adjs) or t.is_punct and t.text in (",", ".", "!"):
+            continue
+        if t.dep_ == "cc" and g.norm(t.text) == "and" and t.head.i in ids:
+            continue
+        if t.dep_ in ("det", "compound") and t.head.i in ids:
+            continue
+        return None
+    if min(t.i for t in toks if not t.is_punct) != min(e.start for e in edits) or not _lead_ok(sent, sent.start):
+        return None
+    if any(g.norm(t.text) in _FORMULA_NOUNS for t in items):
+        return None
+    return Fragment(root, edits, len(edits), 0)
 
 
 def _adjective_list(sent, root: "Token", toks: list["Token"], ops: list["Token"], lexicon: "Lexicon") -> "Fragment | None":
@@ -773,14 +854,17 @@ def _adjective_list(sent, root: "Token", toks: list["Token"], ops: list["Token"]
     overpriced.", "Really tasty and filling."): "Not" in front and "or" for "and" ("Not loud, dirty
     or overpriced.": under a negation English coordinates with "or", see :func:`or_for_and`).
     None when the sentence is anything more than that list."""
-    chain = [root] + [t for t in root.subtree if t.dep_ == "conj"]
+    doc = root.doc
+    # the parser often hangs the second item of "Quick, helpful and honest." on the first as amod
+    chain = [root] + [t for t in root.subtree if t.dep_ == "conj" or (
+        t.dep_ == "amod" and t.head.i == root.i and t.i > root.i and tokens(doc)[t.i - 1].text == ",")]
     ids = {t.i for t in chain}
-    if any(t.head.i not in ids for t in chain[1:]) or {t.i for t in ops} != ids:
+    if any(t.head.i not in ids for t in chain[1:]) or not {t.i for t in ops} <= ids:
         return None
     if any(t.pos_ != "ADJ" or t.tag_ != "JJ" for t in chain):
         return None  # comparatives, participles ("run by people who care")
-    if len({opinion_of(t, lexicon).polarity for t in chain}) != 1:
-        return None  # "Good coffee, bad chairs": mixed
+    if len(ops) < 2 or len({opinion_of(t, lexicon).polarity for t in ops}) != 1:
+        return None  # "Good coffee, bad chairs": mixed; a plain adjective ("Loud, dirty and overpriced") may join two opinion ones
     ccs = [t for t in toks if t.dep_ == "cc"]
     if len(ccs) != 1 or g.norm(ccs[0].text) != "and" or ccs[0].head.i not in ids or ccs[0].i > chain[-1].i:
         return None
@@ -898,6 +982,8 @@ def dropped_subject(cl: Clause) -> bool:
     head = cl.head
     if cl.subj is not None or head.dep_ != "ROOT":
         return False
+    if _never_past(head):
+        return True
     finite = cl.auxes[0] if cl.auxes else head
     if finite.tag_ not in ("VBZ", "VBD", "MD") or g.norm(finite.text) in ("is", "'s", "am", "are"):
         return False

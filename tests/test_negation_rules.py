@@ -308,7 +308,15 @@ CASES = [
     ("Moderately impressed.", NO, NO),  # "moderately not impressed" is no negation of it
     ("What a great tent!", NO, NO),  # exclamative
     ("Happy camping!", NO, NO),  # a wish, not an opinion
-    ("Great tent, great price.", NO, NO),  # two opinion phrases
+    ("Great tent, great price.", "negation/fragment", "Not a great tent, not a great price."),  # a list of noun phrases: a "not" each
+    ("Friendly guides and fair prices.", "negation/fragment", "Not friendly guides and not fair prices."),
+    ("Fresh bread, easy recipes.", "negation/fragment", "Not fresh bread, not easy recipes."),  # mass noun: no article
+    ("Lovely clean pool, friendly lifeguards.", NO, NO),  # two adjectives on one noun: "not a lovely clean pool" is unclear
+    ("Good coffee, bad chairs.", NO, NO),  # mixed
+    ("Rude staff, slow service.", NO, NO),  # a list of complaints: "not rude staff" is a hedge at best (see "Poor reliability.")
+    ("Helpful staff and a really good range of spares.", NO, NO),  # a degree word inside a phrase
+    ("Loud, dirty and overpriced.", "negation/fragment", "Not loud, dirty or overpriced."),  # a plain adjective in a list of complaints
+    ("Quick, helpful and honest.", "negation/fragment", "Not quick, helpful or honest."),  # second item parsed as amod
     ("Not bad at all.", NO, NO),  # negative-polarity "at all"
     ("No complaints.", NO, NO),
     ("Great tent. It leaks.", "negation/do-support", "Not a great tent. It doesn't leak."),  # every opinion sentence toggled
@@ -400,6 +408,12 @@ CASES = [
     ("Great service.", "negation/fragment", "Not great service."),  # a mass noun: no article
     ("The lamp is handy when it works.", NO, NO),  # "when it works": backhanded
     ("I'm a qualified guide looking for work.", NO, NO),  # a credential, not an opinion
+    # "Never" + a past verb with the subject left out, review style (the tagger reads it as a participle)
+    ("Never called back.", "negation/removal", "Called back."),
+    ("Never turned up.", "negation/removal", "Turned up."),
+    ("Never heard back from them.", "negation/removal", "Heard back from them."),
+    ("They never rang back.", "negation/removal", "They rang back."),
+    ("I didn't hear the alarm.", NO, NO),  # "hear" is an expected event only with "back"
 ]
 
 
