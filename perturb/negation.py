@@ -283,6 +283,9 @@ def _word_opinion(tok: "Token", lexicon: "Lexicon"):
         tok.dep_ == "acomp" or any(c.dep_ == "auxpass" for c in tok.children)
     ):  # "I was impressed / disappointed" (passive), not "I have worn"
         hit = lexicon.lookup(g.norm(tok.text), "ADJ")
+    if hit is None and pos == "VERB" and tok.tag_ == "VBG" and g.norm(tok.text) == "missing" and not any(c.dep_ == "dobj" for c in tok.children) and any(
+            g.aux_kind(c) == "be" for c in tok.children if c.dep_ == "aux"):
+        hit = lexicon.lookup("missing", "ADJ")  # "the lemons were missing": the adjective, tagged as a progressive
     if hit is None and pos in ("ADJ", "ADV") and excess_degree(tok) is not None:
         # "too small", "took too long": "too" says the degree passes what is wanted, a complaint
         # whatever the adjective (handbook grammar: "too" + adjective/adverb = more than is
@@ -1300,6 +1303,8 @@ NEGATABLE_EXTREME = frozenset({"great"})
 WEAKENING_AFTER_NOT = frozenset({"so", "too", "that", "all", "overly"})
 # a time frame makes a negated event mean "not then" instead of the opposite verdict:
 # "didn't break two weeks after I gave it", "wasn't satisfied, until last night"
+_ORDINALS = frozenset("first second third fourth fifth sixth seventh eighth ninth tenth umpteenth nth last".split())
+_TIME_UNITS = frozenset("minute hour day week month year fortnight age while".split())
 TIME_FRAME_WORDS = frozenset({"until", "till", "til", "after", "before", "since", "once"})
 TIME_FRAME_PREPS = frozenset({"until", "till", "til", "since"})  # "after two days" is a duration: "didn't sag after a few hours" is fine
 # Modals whose negation is not the opposite: "may not" / "might not" keep the possibility,
@@ -1544,6 +1549,14 @@ def _insertion_guard(cl: Clause, main: list["Token"], lexicon: "Lexicon") -> str
             return f"'at {n}'"
     if cl.subj is not None and cl.subj.dep_ == "expl":
         return "existential 'there'"  # "there is also not a lack": wants "no"
+    for x in cl.own:
+        if lemma(x).lower() == "time" and any(c.dep_ == "amod" and (c.tag_ == "JJ" and g.norm(c.text) in _ORDINALS or
+                                                                  c.text[:1].isdigit()) for c in x.children):
+            return "an ordinal 'time'"  # "Fourth time the garlic has been missing": a count of failures, not one to deny
+    if all((e := opinion_of(t, lexicon)) is not None and e.polarity < 0 for t in main) and any(
+            c.dep_ == "prep" and g.norm(c.text) == "for" and any(lemma(p).lower() in _TIME_UNITS for p in c.children if p.dep_ == "pobj")
+            for c in cl.head.children):
+        return "a negative state with a duration"  # "hasn't been missing for a week" denies the week, not the fault
     if any(c.dep_ == "nsubj" and c.i > cl.head.i for c in cl.head.children) and not any("?" in t.text for t in cl.own):
         return "inverted clause"  # "boy was i wrong" -> "*boy wasn't i wrong" (round 11)
     if lemma(cl.head).lower() not in _HAVE_BE | {"come"} and (t := _in_a_phrase_only(cl, lexicon)) is not None:

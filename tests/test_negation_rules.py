@@ -414,6 +414,13 @@ CASES = [
     ("Never heard back from them.", "negation/removal", "Heard back from them."),
     ("They never rang back.", "negation/removal", "They rang back."),
     ("I didn't hear the alarm.", NO, NO),  # "hear" is an expected event only with "back"
+    ("The pegs were missing from the bag.", "negation/copula", "The pegs weren't missing from the bag."),  # "missing" tagged as a progressive
+    ("I am missing the old menu.", NO, NO),  # "miss" with an object: a longing, not a missing part
+    ("My card has stopped scanning at the till.", "negation/modal", "My card hasn't stopped scanning at the till."),
+    ("The app stopped loading.", NO, NO),  # "didn't stop loading" would read as stuck loading: not listed
+    ("Fourth time the lid has been missing.", NO, NO),  # an ordinal "time": a count of failures
+    ("My parcel has been missing for a week.", NO, NO),  # a negative state with a duration: the negation takes the week
+    ("The stove has worked for years.", "negation/modal", "The stove hasn't worked for years."),  # a positive one reverses
 ]
 
 
