@@ -69,6 +69,10 @@ Rules:
     and the balcony is huge"), sequence or addition words (then, later, so, also, too), commas
     inside a clause. A sentence adverbial or adverbial clause before the first subject ("Honestly,
     ...", "Since the refit, ...") covers both clauses and stays in front.
+    Three or more clauses in a comma list closed by "and" ("The staff are helpful, the space is
+    quiet and the showers are immaculate.") rotate by one under the same conditions; each item
+    must open with its own subject and have a finite verb, and none may carry "I think"-like
+    reporting or a contrast word.
 ``reorder/shuffle`` (none, diagnostic)
     A seeded random permutation of the content words (nouns, verbs, adjectives, adverbs,
     numbers) of each sentence; function words, negators and punctuation keep their places.
@@ -234,6 +238,7 @@ def candidates(doc: "Doc", ctx: Context) -> Iterator[Candidate]:
         yield from _verbless_list(sent, ctx)
         yield from _adverbial(sent, ctx)
         yield from _clauses(sent, ctx)
+        yield from _clause_list(sent, ctx)
     shuffled = _shuffle(doc, ctx)
     if shuffled is not None:
         yield shuffled
@@ -521,16 +526,24 @@ def _verbless_list(sent: "Span", ctx: Context) -> Iterator[Candidate]:
             return
     if any(t.lower_ in NEGATORS or t.like_num or t.lower_ in SEQUENCE_WORDS for t in doc[sent.start : last + 1]):
         return
+    edits = _rotate_spans(sent, spans)
+    yield Candidate(
+        "reorder/coordination", RULES["reorder/coordination"], tuple(edits),
+        {"kind": "np-list", "conjuncts": len(spans), "coordinator": ","},
+    )
+
+
+def _rotate_spans(sent: "Span", spans: list[tuple[int, int]]) -> list[TokenEdit]:
+    """Edits that rotate the token spans by one (A, B, C -> B, C, A), fixing the capital of the
+    span that moves to or from the sentence start; the text between the spans stays."""
+    doc = sent.doc
     order = list(range(1, len(spans))) + [0]
     edits = []
     for pos, src in enumerate(order):
         a, b = spans[pos]
         sa, sb = spans[src]
         edits.append(TokenEdit(a, b, _span_text(doc, sa, sb, initial=a == sent.start, was_initial=sa == sent.start)))
-    yield Candidate(
-        "reorder/coordination", RULES["reorder/coordination"], tuple(edits),
-        {"kind": "np-list", "conjuncts": len(spans), "coordinator": ","},
-    )
+    return edits
 
 
 def _linking_vps(conj: list["Token"]) -> bool:
@@ -1024,6 +1037,8 @@ def _clauses(sent: "Span", ctx: Context) -> Iterator[Candidate]:
         return
     conjs = [c for c in root.children if c.dep_ == "conj"]
     ccs = [c for c in root.children if c.dep_ == "cc"]
+    if len(conjs) == 1 and not ccs:
+        ccs = _stray_cc(root, conjs[0])
     if len(conjs) != 1 or len(ccs) != 1 or ccs[0].lower_ != "and":
         return
     second, cc = conjs[0], ccs[0]
@@ -1066,6 +1081,99 @@ def _clauses(sent: "Span", ctx: Context) -> Iterator[Candidate]:
     c2 = _span_text(doc, start, end1, initial=False, was_initial=initial)
     edits = (TokenEdit(start, end1, c1), TokenEdit(cc.i + 1, last + 1, c2))
     yield Candidate("reorder/clauses", RULES["reorder/clauses"], edits, {"coordinator": "and", "kinds": kinds})
+
+
+def _stray_cc(root: "Token", second: "Token") -> list["Token"]:
+    """The "and" right before the second clause when the parser hung it on the last word of the
+    first clause instead of its verb ("The desks are roomy and the Wi-Fi is fast": "and" under
+    "roomy")."""
+    j = second.left_edge.i - 1
+    if j <= root.i:
+        return []
+    t = tokens(root.doc)[j]
+    if t.dep_ == "cc" and t.head.i < j and not any(c.dep_ == "conj" for c in t.head.children) and any(
+        a.i == root.i for a in t.head.ancestors
+    ):
+        return [t]
+    return []
+
+
+def _clause_list(sent: "Span", ctx: Context) -> Iterator[Candidate]:
+    """Three or more independent clauses in a comma list closed by "and" ("The staff are
+    helpful, the space is quiet and the showers are immaculate."): rotated by one, as the
+    two-clause swap, under the same conditions (states, or present events whose subjects are not
+    "I", "we" or "you"; no pronoun, sequence word or noun shared across clauses). Each comma
+    item must be one clause that opens with its own subject and has a finite verb; the parser's
+    links between the clauses (root, ccomp, conj) are not trusted beyond that."""
+    doc = sent.doc
+    if _is_question(sent) or _name_like_start(sent):
+        return
+    last = _last_word(sent)
+    if last < 0:
+        return
+    body = list(doc[sent.start : last + 1])
+    if any(t.lower_ in CONTRAST or t.text[:1] in "@#" or t.like_url for t in body):
+        return
+    ccs = [t for t in body if t.dep_ in ("cc", "preconj") or t.lower_ in ("and", "or", "nor", "but")]
+    if len(ccs) != 1 or ccs[0].lower_ != "and":
+        return
+    cc = ccs[0]
+    puncts = [t for t in body if _loose_punct(t)]
+    if any(t.text != "," or t.i > cc.i for t in puncts):
+        return
+    seps = [t.i for t in puncts]
+    oxford = bool(seps) and seps[-1] == cc.i - 1
+    cuts = seps[:-1] if oxford else seps
+    if not cuts:
+        return
+    starts = [sent.start] + [i + 1 for i in cuts] + [cc.i + 1]
+    ends = list(cuts) + [cc.i - 1 if oxford else cc.i, last + 1]
+    spans = list(zip(starts, ends))
+    if len(spans) < 3 or any(b <= a for a, b in spans):
+        return
+    heads: list["Token"] = []
+    subjects: list["Token"] = []
+    kinds: list[str] = []
+    for a, b in spans:
+        seg = list(doc[a:b])
+        top = [t for t in seg if not (a <= t.head.i < b) or t.head.i == t.i]
+        if len(top) != 1:
+            return
+        h = top[0]
+        be = [c for c in h.children if lemma(c) == "be" and c.dep_ in ("auxpass", "cop", "aux")]
+        if h.pos_ in ("VERB", "AUX"):
+            kind = _clause_kind(h)
+        elif h.pos_ == "ADJ" and len(be) == 1 and be[0].i < h.i:
+            kind = "state"  # "the showers are immaculate" parsed with "are" as a passive auxiliary
+        else:
+            return
+        subj = [c for c in h.children if c.dep_ in ("nsubj", "nsubjpass", "expl")]
+        if len(subj) != 1 or subj[0].left_edge.i != a or _not_a_clause(h, subj[0]):
+            return
+        if not any(t.tag_ in ("VBZ", "VBP", "VBD", "MD") for t in seg):
+            return  # a verbless item ("Light, comfortable and the gears are smooth")
+        if any(c.dep_ in ("mark", "ccomp") and a <= c.i < b for c in h.children):
+            return  # "I think the app is slow, ...": a reporting verb would change what it covers
+        heads.append(h)
+        subjects.append(subj[0])
+        kinds.append(kind)
+    ids = {h.i for h in heads}
+    if any(h.head.i not in ids or h.dep_ not in ("ROOT", "ccomp", "conj", "parataxis") for h in heads):
+        return
+    if "past-event" in kinds:
+        return  # "The app crashed, the door wouldn't open, and ...": a story, told in order
+    if "event" in kinds and any(s.lower_ in ("i", "we", "you") for s in subjects):
+        return
+    words = [t for t in body if t.i != cc.i and t.i not in seps]
+    if any(t.lower_ in ANAPHORS and not (t.dep_ == "det" and t.lower_ in DEMONSTRATIVES) or t.lower_ in SEQUENCE_WORDS
+           for t in words):
+        return
+    nouns = [{lemma(t).lower() for t in doc[a:b] if t.pos_ == "NOUN"} for a, b in spans]
+    if any(nouns[i] & nouns[j] for i in range(len(nouns)) for j in range(i + 1, len(nouns))):
+        return
+    edits = _rotate_spans(sent, spans)
+    yield Candidate("reorder/clauses", RULES["reorder/clauses"], tuple(edits),
+                    {"coordinator": "and", "kinds": kinds, "clauses": len(spans)})
 
 
 def _shared_prefix(sent: "Span", root: "Token", start: int) -> bool:

@@ -235,6 +235,22 @@ CASES = [
     ("The wifi drops and I lose my work.", CLAUSE, set()),  # two events: the second follows from the first
     ("The app crashes and I am stuck.", CLAUSE, set()),  # the writer's state follows from the event
     ("The cabin has a balcony and the balcony is huge.", CLAUSE, set()),  # the second mention refers back
+    # "and" hung on the last word of the first clause by the parser ("roomy" tagged as a noun)
+    ("The desks are roomy and the Wi-Fi is fast.", CLAUSE, {"The Wi-Fi is fast and the desks are roomy."}),
+    # three or more clauses in a comma list closed by "and": rotated by one, Oxford comma kept
+    ("The tent is roomy, the poles are light and the pegs are sturdy.", CLAUSE,
+     {"The poles are light, the pegs are sturdy and the tent is roomy."}),
+    ("The tent is roomy, the poles are light, and the pegs are sturdy.", CLAUSE,
+     {"The poles are light, the pegs are sturdy, and the tent is roomy."}),
+    ("The tent was roomy, the poles were light and the pegs were sturdy.", CLAUSE,
+     {"The poles were light, the pegs were sturdy and the tent was roomy."}),  # past states
+    ("The zip broke, the seam ripped and the pole snapped.", CLAUSE, set()),  # past events: told in order
+    ("Light, comfy and the pegs are sturdy.", CLAUSE, set()),  # verbless items and a clause
+    ("The tent is roomy, it packs small and the pegs are sturdy.", CLAUSE, set()),  # "it" refers back
+    ("The tent is roomy, the poles are light but the pegs are flimsy.", CLAUSE, set()),  # contrast
+    ("The stove is slow, I burn my fingers and the pot wobbles.", CLAUSE, set()),  # an event with "I": a consequence
+    ("The tent has a porch, the porch is dry and the pegs are sturdy.", CLAUSE, set()),  # the second "porch" refers back
+    ("I think the tent is roomy, the poles are light and the pegs are sturdy.", CLAUSE, set()),  # "I think" covers one item only
     # noun phrases with their own adjectives or articles; three items ending in a complement
     ("Friendly guides, calm water and a lovely lunch.", COORD, {"Calm water, a lovely lunch and friendly guides."}),
     ("We loved the friendly guides and the calm water.", COORD, {"We loved the calm water and the friendly guides."}),
