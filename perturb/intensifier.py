@@ -144,6 +144,14 @@ FUNCTION_VERBS = frozenset(
 AMPLIFIED_VERBS = {"love": "really", "like": "really", "enjoy": "really", "hate": "really",
                    "dislike": "really", "appreciate": "really", "recommend": "highly"}
 HENDIADYS = frozenset({"nice", "good", "lovely", "fine"})
+# Adverbs of frequency, time and addition that may stand between a linking verb and its
+# adjective without grading it: "is always polite" -> "is always very polite", "is still clunky",
+# "is also patchy" (they set when or how often the quality holds, not its degree; Quirk et al.
+# 1985, 8.62ff on time and frequency adjuncts, from memory).
+FRAME_ADVERBS = frozenset("always usually still also generally normally often now".split())
+# Conjunctions and marks allowed inside a plain list of adjectives ("early and cheerful",
+# "Loud, dirty and overpriced").
+LIST_LINKS = frozenset({",", "and", "or", "&"})
 EXCLAMATIVE = frozenset({"what", "such", "quite", "rather"})
 
 
@@ -276,6 +284,8 @@ def _is_adjective(tok: "Token", lex: "Lexicon") -> bool:
         return True
     if tok.tag_ in ("VBN", "VBG") and tok.dep_ in ("amod", "acomp") and lex.lookup(tok.lower_, "ADJ"):
         return True  # participial adjectives: "satisfied", "disappointing"
+    if tok.tag_ == "VBN" and tok.dep_ in ("ROOT", "conj") and lex.lookup(tok.lower_, "ADJ") and _passive_be(tok) is not None:
+        return True  # "I was impressed by the call", "we were pleased": the participle grades like an adjective
     if (
         tok.pos_ == "NOUN"
         and tok.tag_ == "NN"
@@ -305,8 +315,11 @@ def _adjective_role(tok: "Token") -> str | None:
             # "skates on wet granite", "in heavy rain", "after a couple of quick adjustments": the
             # weather, ground or occasion, not the product
             return None
-        if noun.dep_ not in ("dobj", "attr", "ROOT") or tok.i + 1 != noun.i or head.i != tok.i:
+        if not (noun.dep_ in ("dobj", "attr", "ROOT") or _fragment_item(noun)) or head.i != tok.i:
             return None  # "with an expensive lens": a detail, not the text's opinion
+        if not all(t.dep_ == "compound" and t.pos_ == "NOUN" and t.head.i in range(t.i + 1, noun.i + 1)
+                   for t in tok.doc[tok.i + 1 : noun.i]):
+            return None  # only "ADJ NOUN" or "ADJ NOUN NOUN" ("awful customer service")
         if any(c.i < tok.i and (c.dep_ not in ("det", "advmod", "punct") or
                                 (c.dep_ == "det" and c.lower_ not in ("a", "an", "the")))
                for c in noun.children):
@@ -314,17 +327,71 @@ def _adjective_role(tok: "Token") -> str | None:
         return "attributive"
     if dep in ("acomp", "attr", "oprd", "xcomp", "ccomp") and head.head.pos_ in ("VERB", "AUX"):
         verb = {"'m": "be", "'s": "be", "'re": "be"}.get(head.head.lower_.replace("\u2019", "'"), lemma(head.head).lower())
-        if head.i != tok.i or verb not in LINKING_VERBS or head.head.i > tok.i:
+        if verb not in LINKING_VERBS or head.head.i > head.i:
             return None  # "we turned poor", "makes it easy": a change of state or a result, not an opinion
-        if not all(t.i in _degree_span(tok) or t.dep_ in ("neg",) for t in tok.doc[head.head.i + 1 : tok.i]):
+        if head.i != tok.i and not _adjective_list(head, tok):
+            return None  # "is tidy and I like it": only a plain list of adjectives ("early and cheerful")
+        if not all(t.i in _degree_span(head) or t.dep_ in ("neg",) or _frame_adverb(t)
+                   for t in tok.doc[head.head.i + 1 : head.i]):
             return None  # "joaquin phoenix uncomfortable", "is slowly warm": only degree words in between
         return "predicative"
-    if dep == "ROOT":  # a fragment: "Very comfortable."
+    if dep == "ROOT" and (head.pos_ == "ADJ" or head.i == tok.i) and _passive_be(tok) is None:  # a fragment: "Very comfortable."
         sent = sent_of(tok)
-        if any(not (t.is_punct or t.i in _degree_span(tok) or t.pos_ == "INTJ") for t in tok.doc[sent.start : tok.i]):
+        if any(not (t.is_punct or t.i in _degree_span(head) or t.pos_ == "INTJ") for t in tok.doc[sent.start : head.i]):
             return None  # "joaquin phoenix uncomfortable": a comparison with a name, not a plain fragment
+        if head.i != tok.i and not _adjective_list(head, tok):
+            return None
         return "predicative"
+    if tok.tag_ == "VBN" and head.i == tok.i and dep in ("ROOT", "conj") and _passive_be(tok) is not None:
+        be = _passive_be(tok)
+        if not all(t.i in _degree_span(tok) or _frame_adverb(t) for t in tok.doc[be.i + 1 : tok.i]):
+            return None
+        return "predicative"  # "I was really impressed by the call": a participle used as an adjective
     return None
+
+
+def _frame_adverb(t: "Token") -> bool:
+    return t.lower_ in FRAME_ADVERBS and t.dep_ == "advmod"
+
+
+def _passive_be(tok: "Token") -> "Token | None":
+    """The "be" of a participle used predicatively ("was impressed"), when it has one."""
+    for c in tok.children:
+        if c.dep_ == "auxpass" and lemma(c).lower() == "be" and c.i < tok.i:
+            return c
+    return None
+
+
+def _adjective_list(head: "Token", tok: "Token") -> bool:
+    """Is ``tok`` a later item of a plain list of adjectives that starts at ``head`` ("early and
+    really cheerful", "Loud, dirty and overpriced"): only adjectives, their degree words, commas
+    and "and"/"or" between them?"""
+    if tok.pos_ != "ADJ" or tok.dep_ != "conj":
+        return False
+    items = {head.i}
+    node = tok
+    while node.dep_ == "conj" and node.head.i != node.i:
+        items.add(node.i)
+        node = node.head
+    for t in tok.doc[head.i + 1 : tok.i]:
+        if t.i in items:
+            if t.pos_ != "ADJ":
+                return False
+        elif not (t.lower_ in LIST_LINKS or t.head.i in items and t.dep_ == "advmod"):
+            return False
+    return not any(c.dep_ in ("nsubj", "aux", "cop", "nsubjpass") for c in tok.children)
+
+
+def _fragment_item(noun: "Token") -> bool:
+    """A later item of a verbless list of noun phrases ("Great coffee, lovely people, friendly
+    staff."): the noun hangs by conj/appos from nouns up to a noun that is the sentence's root."""
+    node = noun
+    while node.dep_ in ("conj", "appos") and node.head.pos_ == "NOUN" and node.head.i < node.i:
+        node = node.head
+    if node is noun or node.dep_ != "ROOT":
+        return False
+    sent = sent_of(noun)
+    return not any(t.pos_ in ("VERB", "AUX") for t in sent)
 
 
 def _degree_span(tok: "Token") -> set[int]:
@@ -483,6 +550,13 @@ def _left_modifier(tok: "Token", degree: dict[tuple[str, ...], str]) -> tuple[in
         return (start, kind)
     if tok.i > sent_start:
         prev = tokens(doc)[tok.i - 1]
+        before = tokens(doc)[tok.i - 2] if tok.i - 1 > sent_start else None
+        plain_before = before is None or not (before.lower_ in OTHER_DEGREE | NEGATORS or before.dep_ == "neg"
+                                              or before.pos_ == "ADV" and before.lower_ not in FRAME_ADVERBS)
+        if prev.lower_ in ("so", "pretty") and prev.head.i == tok.i and prev.dep_ == "advmod" and plain_before:
+            return (tok.i - 1, prev.lower_)  # "is so useful", "Pretty happy."
+        if _frame_adverb(prev) and prev.head.i != tok.i or prev.lower_ in FRAME_ADVERBS and prev.lower_ != "still" and prev.dep_ == "advmod":
+            return None  # "is always polite": a frequency, not a degree
         if prev.lower_ in OTHER_DEGREE or prev.tag_ in ("RB", "RBR", "RBS") and prev.head.i == tok.i:
             return (tok.i - 1, "other")
     return None
@@ -517,9 +591,10 @@ def _edits_for(doc: "Doc", tok: "Token", entry: "OpinionWord", role: str, degree
             return  # stacked modifiers: "a big roomy tent"
         if prev is not None and prev.lower_ == "such":
             return
-        if prev is not None and (prev.pos_ == "ADV" or prev.dep_ == "advmod" or prev.lower_ in SWEAR_DEGREE):
+        frame = prev is not None and role == "predicative" and prev.lower_ in FRAME_ADVERBS and prev.dep_ == "advmod"
+        if prev is not None and not frame and (prev.pos_ == "ADV" or prev.dep_ == "advmod" or prev.lower_ in SWEAR_DEGREE):
             return  # another degree-like word already there: "so bloody lazy" (blind review, round 2)
-        if prev is not None and prev.head.i == tok.i and prev.dep_ not in ("det", "poss", "punct", "neg"):
+        if prev is not None and not frame and prev.head.i == tok.i and prev.dep_ not in ("det", "poss", "punct", "neg", "auxpass"):
             return  # any other word already grading it: "mega ill" -> "*mega very ill" (blind review, round 4)
         if nxt is not None and (nxt.like_num or nxt.text[:1].isdigit() or nxt.pos_ == "PROPN"):
             return  # a formula or a name follows: "Happy 4th of July", "Happy New Year"
@@ -541,10 +616,27 @@ def _edits_for(doc: "Doc", tok: "Token", entry: "OpinionWord", role: str, degree
             yield _candidate(
                 doc, tok, start, soft.split(), "intensifier/soften", dict(base_meta, op="swap", removed=old, word=soft)
             )
+    elif kind == "so" and role in ("predicative", "adverb") and not _result_clause(tok):
+        # "The app is so confusing" -> "The app is confusing": "so" without a "that" clause
+        # is an emphatic degree word (Quirk et al. 1985, 7.87 on "so" as an intensifier, from memory)
+        yield _candidate(doc, tok, start, [], "intensifier/remove", dict(base_meta, op="remove", removed=old))
+    elif kind == "pretty":
+        # "Pretty happy." -> "Very happy.": "pretty" is a moderator, below "very" on the scale
+        # (Quirk et al. 1985, 8.111 on compromisers; Biber et al. 1999, 7.7; from memory)
+        amp = EXTREME_AMPLIFIER[entry.polarity] if extreme else AMPLIFIER
+        yield _candidate(doc, tok, start, [amp], "intensifier/amplify", dict(base_meta, op="swap", removed=old, word=amp))
     elif kind == "softener" and not extreme:
         yield _candidate(
             doc, tok, start, [AMPLIFIER], "intensifier/amplify", dict(base_meta, op="swap", removed=old, word=AMPLIFIER)
         )
+
+
+def _result_clause(tok: "Token") -> bool:
+    """ "so bad that I tether", "so tired I slept": a result clause hangs on the degree word."""
+    doc = tok.doc
+    nxt = tokens(doc)[tok.i + 1] if tok.i + 1 < len(doc) else None
+    return (nxt is not None and nxt.lower_ == "that") or any(
+        c.dep_ in ("ccomp", "advcl") and c.i > tok.i for c in [*tok.children, *tok.head.children])
 
 
 def _verb_takes_amplifier(tok: "Token") -> bool:

@@ -186,6 +186,46 @@ CASES = [
     ("Happy to test it for you.", SOFT, set()),  # willingness
     ("It installs properly.", AMP, set()),  # "properly" is not gradable: "very properly" is odd
     ("The stove seems reliable.", SOFT, {"The stove seems fairly reliable."}),  # linking verb
+    # a frequency or time adverb between the linking verb and the adjective grades nothing
+    # (Quirk et al. 1985, 8.62ff on time and frequency adjuncts, from memory)
+    ("The guide is always cheerful.", AMP, {"The guide is always very cheerful."}),
+    ("The guide is always cheerful.", SOFT, {"The guide is always fairly cheerful."}),
+    ("The zip is still stiff.", AMP, {"The zip is still very stiff."}),
+    ("The signal is also patchy.", SOFT, {"The signal is also a bit patchy."}),
+    ("The soup is always a bit bland.", AMP, {"The soup is always very bland."}),
+    ("The tent is slowly warm.", AMP, set()),  # a manner adverb in between: no plain predicate
+    ("The tent is surprisingly roomy.", AMP, set()),  # another adverb already grades it
+    ("The zip is still better.", AMP, set()),  # comparative
+    # later items of a plain list of adjectives, predicative or as a fragment
+    ("The guide was early and really cheerful.", REM, {"The guide was early and cheerful."}),
+    ("The guide was early and really cheerful.", SOFT, {"The guide was early and fairly cheerful."}),
+    ("Noisy, dirty and overpriced.", AMP, {"Very noisy, dirty and overpriced.", "Noisy, very dirty and overpriced.",
+                                            "Noisy, dirty and very overpriced."}),
+    ("The tent was roomy and I slept well.", SOFT, {"The tent was fairly roomy and I slept well."}),  # no list: a clause
+    # a passive participle used as an adjective ("was impressed"): graded like one
+    ("I was really impressed by the guide.", REM, {"I was impressed by the guide."}),
+    ("I was impressed by the guide.", AMP, {"I was very impressed by the guide."}),
+    ("The zip was broken by the wind.", AMP, set()),  # not gradable
+    # "so" with no result clause is an emphatic degree word: removal weakens (Quirk et al. 1985,
+    # 7.87 on "so", from memory); with a "that" clause or a clause after it, removal breaks the sentence
+    ("The new strap is so comfortable.", REM, {"The new strap is comfortable."}),
+    ("So easy.", REM, {"Easy."}),
+    ("The signal is so bad that I use my phone.", REM, set()),
+    ("The signal is not so bad.", REM, set()),  # negated: "not so bad" is praise
+    ("The tent is so roomy.", AMP, set()),  # no "so very"
+    # "pretty" is a moderator, below "very" (Quirk et al. 1985, 8.111; Biber et al. 1999, 7.7; from memory)
+    ("Pretty happy.", AMP, {"Very happy."}),
+    ("The boots are pretty stiff.", AMP, {"The boots are very stiff."}),
+    ("The boots are pretty stiff.", REM, set()),  # "The boots are stiff." may be no weaker
+    # an adjective before a compound noun grades the whole compound ("awful customer service")
+    ("Absolutely awful customer service.", REM, {"Awful customer service."}),
+    ("Good quality boots.", AMP, {"Very good quality boots."}),
+    ("It is a sturdy tent bag.", AMP, {"It is a very sturdy tent bag."}),
+    ("They did a good job.", AMP, set()),  # "good job": a formula noun, still left alone
+    ("A rugged co-op tent.", AMP, set()),  # a hyphenated word: not a plain compound
+    # later items of a verbless list of noun phrases
+    ("Friendly staff, fair prices.", AMP, {"Very friendly staff, fair prices.", "Friendly staff, very fair prices."}),
+    ("Friendly staff and the prices are fair.", AMP, {"Friendly staff and the prices are very fair."}),  # a verb: no fragment list
 ]
 
 
