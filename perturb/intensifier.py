@@ -31,9 +31,14 @@ Skipped, because the expectation would be unclear or the result ungrammatical: q
 words inside a negated scope ("not very comfortable": removing *very* makes the complaint
 stronger, not weaker); hypothetical or wished-for contexts (if, would, should, wish, hope,
 want, expect); comparatives and superlatives ("lighter", "best", "more comfortable");
-words already carrying another degree word (too, so, quite, pretty, rather, as ... as, how,
-enough, barely, ...) or any other adverb ("surprisingly cool"); stacked attributive adjectives
-("a big roomy tent"); and texts whose opinion words disagree in polarity or that contain a
+words already carrying another degree word (too, quite, rather, as ... as, how, enough,
+barely, ...) or any other adverb ("surprisingly cool"), except that *so* with no result clause
+after it may be removed ("is so useful" -> "is useful", weaken; never "so bad that ...") and
+*pretty* may become *very* ("Pretty disappointed." -> "Very disappointed.", strengthen: *pretty*
+is a moderator below *very*), and a frequency or time adverb between the linking verb and the
+adjective stays where it is ("is always polite" -> "is always very polite"); stacked attributive
+adjectives ("a big roomy tent", though an adjective before a compound noun is graded: "awful
+customer service"); and texts whose opinion words disagree in polarity or that contain a
 contrast ("roomy but heavy"), since weakening one side of a mixed text may strengthen the other.
 
 Words inside a multiword lexicon expression ("worth it", "well-made", "value for money") are never
