@@ -490,46 +490,55 @@ def _coordination(sent: "Span", ctx: Context) -> Iterator[Candidate]:
 
 
 def _verbless_list(sent: "Span", ctx: Context) -> Iterator[Candidate]:
-    """A verbless sentence that is only a comma list of noun phrases, each with its own opinion
-    adjective and no article ("Fair prices, quick service." -> "Quick service, fair prices.").
-    spaCy parses the later items as appositions; an article ("Our host, a retired sailor") or an
-    item without an opinion adjective is a real apposition and is left alone."""
+    """A verbless sentence that is only a comma list, with no coordinator, of noun phrases each
+    with its own opinion adjective and no article ("Fair prices, quick service." -> "Quick
+    service, fair prices."), or of opinion adjectives ("Quick, easy, delicious." -> "Easy,
+    delicious, quick."). The items are cut at the commas, since spaCy links them as appositions
+    or conjuncts by turns; each must be one phrase of the parse. An article ("Our host, a retired
+    sailor") or an item without an opinion adjective may be a real apposition and is left alone."""
     doc = sent.doc
     root = sent.root
-    if root.pos_ != "NOUN" or _is_question(sent):
+    if root.pos_ not in ("NOUN", "ADJ") or _is_question(sent):
         return
-    items = [root]
-    while True:
-        nxt = [c for c in items[-1].children if c.dep_ == "appos" and c.i > items[-1].i]
-        nxt += [c for c in root.children if c.dep_ == "appos" and c.i > items[-1].i and items[-1] is not root]
-        if len(nxt) != 1:
-            break
-        items.append(nxt[0])
-    if not 2 <= len(items) <= 4:
-        return
-    spans = []
-    for k, t in enumerate(items):
-        others = {u.i for u in items} - {t.i}
-        span = _conjunct_span(t, "np", others)
-        if span is None or _conjunct_shape(doc, span[0], span[1], t, "np") != "plain":
-            return
-        if any(c.dep_ in ("det", "poss") for c in t.children) or t.pos_ != "NOUN":
-            return
-        if not any(c.dep_ == "amod" and ctx.lexicon.lookup(c.lower_, "ADJ") is not None for c in t.children):
-            return
-        spans.append(span)
     last = _last_word(sent)
-    if spans[0][0] != sent.start or spans[-1][1] != last + 1:
+    body = list(doc[sent.start : last + 1])
+    if any(t.pos_ in ("VERB", "AUX") or t.dep_ in ("cc", "preconj") for t in body):
         return
-    for (a1, b1), (a2, _b2) in zip(spans, spans[1:]):
-        if [t.text for t in doc[b1:a2]] != [","]:
+    puncts = [t for t in body if _loose_punct(t)]
+    if not puncts or any(t.text != "," for t in puncts):
+        return
+    cuts = [t.i for t in puncts]
+    spans = list(zip([sent.start] + [i + 1 for i in cuts], cuts + [last + 1]))
+    if not 2 <= len(spans) <= 5 or any(b <= a for a, b in spans):
+        return
+    kinds = set()
+    for a, b in spans:
+        top = [t for t in doc[a:b] if not (a <= t.head.i < b) or t.head.i == t.i]
+        if len(top) != 1:
             return
-    if any(t.lower_ in NEGATORS or t.like_num or t.lower_ in SEQUENCE_WORDS for t in doc[sent.start : last + 1]):
+        t = top[0]
+        if t.pos_ == "NOUN":
+            if any(c.dep_ in ("det", "poss") for c in t.children):
+                return
+            if not any(c.dep_ == "amod" and ctx.lexicon.lookup(c.lower_, "ADJ") is not None for c in t.children):
+                return
+        elif t.pos_ != "ADJ" or ctx.lexicon.lookup(t.lower_, "ADJ") is None:
+            return
+        kind = "np" if t.pos_ == "NOUN" else "adj"
+        if _conjunct_shape(doc, a, b, t, kind) != "plain":
+            return
+        kinds.add(kind)
+    if len(kinds) != 1:
+        return
+    if any(t.lower_ in NEGATORS or t.like_num or t.lower_ in SEQUENCE_WORDS for t in body):
+        return
+    texts = [doc[a:b].text.lower() for a, b in spans]
+    if len(set(texts)) != len(texts):
         return
     edits = _rotate_spans(sent, spans)
     yield Candidate(
         "reorder/coordination", RULES["reorder/coordination"], tuple(edits),
-        {"kind": "np-list", "conjuncts": len(spans), "coordinator": ","},
+        {"kind": kinds.pop() + "-list", "conjuncts": len(spans), "coordinator": ","},
     )
 
 

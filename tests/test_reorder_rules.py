@@ -262,6 +262,11 @@ CASES = [
     ("Fair prices, quick service.", COORD, {"Quick service, fair prices."}),  # a verbless list
     ("Friendly crew, calm sea, great lunch.", COORD, {"Calm sea, great lunch, friendly crew."}),
     ("Our host, a retired sailor.", COORD, set()),  # an apposition, not a list
+    # verbless comma lists with no coordinator, cut at the commas (spaCy links them as appos or conj)
+    ("Fresh bread, friendly staff, easy parking.", COORD, {"Friendly staff, easy parking, fresh bread."}),
+    ("Quick, easy, delicious.", COORD, {"Easy, delicious, quick."}),  # opinion adjectives
+    ("No pegs, no poles, no refund.", COORD, set()),  # negated items: left alone
+    ("Missing pegs, broken pole, late courier.", COORD, set()),  # a participle read as a verb
     ("The fish and chips were great.", COORD, set()),  # bare nouns: often a fixed pair
     ("There is a sauna and a small pool.", COORD, set()),  # "there is" agrees with the first item
     ("No hot water and no towels.", COORD, {"No towels and no hot water."}),
