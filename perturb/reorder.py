@@ -602,6 +602,9 @@ def _coordination_ok(kind: str, conj: list["Token"], toks: list["Span"], texts: 
             return False  # "there is a pool and two saunas": the verb agrees with the first conjunct
         if conj[0].dep_ in ("nsubj", "nsubjpass") and len(set(det)) != 1:
             return False  # "Warm bread and the cakes are fresh": a fragment, then a clause, parsed as one subject
+        root = conj[0].sent.root
+        if conj[0].i > root.i and any(c.dep_ == "ccomp" and c.i < root.i and any(t.text == "," for t in root.doc[c.i:root.i]) for c in root.children):
+            return False  # "The stove is slow, I burn my fingers and the pot wobbles": a comma splice, the last "conjunct" a clause
         after = toks[-1].end
         nxt = toks[-1].doc[after] if after < len(toks[-1].doc) else None
         above = {t.i for t in conj[0].ancestors}
