@@ -77,9 +77,12 @@ _PARTICIPLE_PREPS = frozenset({"with", "by"})
 # "also", "too", "enough": the clause points at another one ("liked it enough to buy another").
 _ADDITIVE = frozenset({"also", "too", "enough"})
 _DEFAULT_STYLE = {"double-negation/prefix": g.FULL}
-# Nouns that take no "a" though the tagger calls them singular ("friendly staff").
+# Nouns that take no "a" though the tagger calls them singular ("friendly staff"). Narrower than
+# the negation family's UNCOUNTABLE: "not a bad service", "not a poor design" read well.
+# "broadband" ... "heating": blind review, round 15 ("*Not a slow broadband").
 _NO_ARTICLE = frozenset({"staff", "personnel", "produce", "veg", "fruit", "bread", "meat", "fish", "wifi",
-                         "internet", "parking", "kit", "gear", "stuff", "furniture", "luggage", "information"})
+                         "internet", "parking", "kit", "gear", "stuff", "furniture", "luggage", "information",
+                         "broadband", "bandwidth", "electricity", "power", "heating", "data"})
 
 
 def candidates(doc: "Doc", ctx: Context) -> Iterator[Candidate]:

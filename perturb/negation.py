@@ -603,15 +603,18 @@ def _analyse(doc: "Doc", lexicon: "Lexicon") -> Analysis:
 _DEGREE = {"very", "so", "too", "really", "especially", "extremely", "super", "incredibly",
            "totally", "completely", "highly", "particularly", "terribly", "awfully", "most", "more",
            "overly", "real", "that", "as"}
-# Mass nouns that take no article ("not poor quality", "not great value for the money").
-_MASS = {"quality", "value", "service", "staff", "equipment", "furniture", "wifi", "sound", "performance", "software", "design", "packaging",
+# Mass nouns that take no article ("not poor quality", "not great value for the money"); the
+# double-negation family keeps a narrower one. "internet", "broadband": blind review, round 15.
+UNCOUNTABLE = frozenset({"quality", "value", "service", "staff", "equipment", "furniture", "wifi", "sound", "performance", "software", "design", "packaging",
          "shipping", "delivery", "stuff", "money", "fun", "advice", "help", "food",
          "weather", "music", "news", "support", "construction", "reception",
          "life", "audio", "graphics", "craftsmanship", "workmanship",
          "material", "clarity", "resolution", "functionality", "usability", "coffee", "taste",
          "crap", "junk", "garbage", "trash", "rubbish", "shit", "bullshit", "luck", "timing",
          "equipment", "gear", "storage", "memory", "feedback", "communication", "technology",
-         "hardware", "imaging", "bass", "access", "produce", "fruit", "bread", "meat", "parking"}
+         "hardware", "imaging", "bass", "access", "produce", "fruit", "bread", "meat", "parking",
+         "internet", "broadband", "bandwidth", "data", "electricity", "power", "heating", "signal",
+         "coverage", "personnel", "veg", "fish", "luggage", "information"})
 # Count nouns with a mass-noun ending: they take "a" ("Not a pleasant experience.", round 14).
 _COUNTABLE_SUFFIXED = {"experience", "relationship", "booking", "meeting", "building", "ending",
                        "instance", "entrance", "appliance", "sentence", "conference", "residence",
@@ -782,7 +785,7 @@ def _not_words(first: "Token", noun: "Token", before: list["Token"], polarity: i
     if any(t.tag_ == "JJS" or g.norm(t.text) in ("best", "worst") or (g.norm(t.text) == "most" and t.dep_ == "advmod")
            for t in before):
         return "not the"
-    if noun.tag_ in ("NNS", "NNPS") or g.norm(noun.text) in _MASS or lemma(noun).lower() in _MASS or (
+    if noun.tag_ in ("NNS", "NNPS") or g.norm(noun.text) in UNCOUNTABLE or lemma(noun).lower() in UNCOUNTABLE or (
             g.norm(noun.text).endswith(("ity", "ness", "ance", "ence", "ship", "ism", "ics", "ing"))
             and g.norm(noun.text) not in _COUNTABLE_SUFFIXED):
         if polarity < 0:

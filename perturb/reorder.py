@@ -774,11 +774,24 @@ def _adverbial(sent: "Span", ctx: Context) -> Iterator[Candidate]:
     if any(c.dep_ == "conj" and c.pos_ in ("VERB", "AUX") for c in root.children):
         return  # "At night, A and B": at the other end the phrase would cover only one conjunct
     subj = subj[0]
+    if _present_perfect(root) and any(
+            (c.dep_ == "prep" and c.lower_ in ("after", "before")) or (c.dep_ == "advcl" and any(
+                m.dep_ in ("mark", "advmod") and m.lower_ in ("once", "after", "before", "when") for m in c.children))
+            for c in root.children):
+        return  # "Once it was running it has been stable", "I've attached a photo ... after the install" (blind review, round 15)
     last = _last_word(sent)
     if last < 0:
         return
     yield from _to_front(sent, root, subj, last, scoped)
     yield from _to_end(sent, root, subj, last, scoped)
+
+
+def _present_perfect(root: "Token") -> bool:
+    """"has been", "I've attached": a present perfect links the event to now, so a past time
+    frame ("after the install", "once it was running") moved across it reads badly or attaches
+    to something else."""
+    return root.tag_ == "VBN" and any(c.dep_ == "aux" and c.lower_ in ("has", "have", "'ve", "'s") and c.tag_ in ("VBZ", "VBP")
+                                      for c in root.children)
 
 
 def _fragment_stance(sent: "Span", root: "Token") -> Iterator[Candidate]:

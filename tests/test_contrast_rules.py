@@ -106,7 +106,7 @@ MADE = [
 SKIPPED = [
     ("The tent is light, but the fly is roomy.", None, "same polarity"),
     ("The tent is green, but the fly is blue.", None, "without one clear polarity"),  # no lexicon opinion
-    ("The stove is loud, but it boils water fast.", None, "without one clear polarity"),  # "loud" is not listed
+    ("The stove is tall, but it boils water fast.", None, "without one clear polarity"),  # "tall" is not listed
     ("Is the tent light but flimsy?", None, "question"),
     ("The tent is great when it is dry, but it leaks in the rain.", None, "condition"),
     ("The tent would be great, but it leaks.", None, "hedging modal"),
@@ -186,12 +186,12 @@ def test_a_swap_keeps_the_words(nlp, lex):
 
 def test_the_lexicon_decides_the_polarity(nlp, tmp_path):
     """The same sentence is skipped without a lexicon entry and swapped with one (--lexicon)."""
-    text = "The stove is loud, but it boils water fast."
+    text = "The stove is tall, but it boils water fast."
     assert SWAP not in made(nlp, load_lexicon(), text)
     extra = tmp_path / "extra.tsv"
-    extra.write_text("loud\tADJ\t-1\tgradable\n", encoding="utf-8")
+    extra.write_text("tall\tADJ\t-1\tgradable\n", encoding="utf-8")
     got = made(nlp, load_lexicon([extra]), text)
-    assert got[SWAP][:2] == ("The stove boils water fast, but it is loud.", "fall")
+    assert got[SWAP][:2] == ("The stove boils water fast, but it is tall.", "fall")
 
 
 def test_however_opening_the_next_sentence_with_unit_text(nlp, lex):

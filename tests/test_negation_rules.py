@@ -421,6 +421,9 @@ CASES = [
     ("Fourth time the lid has been missing.", NO, NO),  # an ordinal "time": a count of failures
     ("My parcel has been missing for a week.", NO, NO),  # a negative state with a duration: the negation takes the week
     ("The stove has worked for years.", "negation/modal", "The stove hasn't worked for years."),  # a positive one reverses
+    # blind review, round 15: "*Not a reliable internet" (mass nouns take no article)
+    ("Reliable internet, decent maps, fair price.", "negation/fragment", "Not reliable internet, not decent maps, not a fair price."),
+    ("Really fast broadband.", "negation/fragment", "Not really fast broadband."),
 ]
 
 

@@ -249,7 +249,11 @@ CASES = [
     ("The tent is roomy, it packs small and the pegs are sturdy.", CLAUSE, set()),  # "it" refers back
     ("The tent is roomy, the poles are light but the pegs are flimsy.", CLAUSE, set()),  # contrast
     ("The stove is slow, I burn my fingers and the pot wobbles.", CLAUSE, set()),  # an event with "I": a consequence
-    ("The stove is slow, I burn my fingers and the pot wobbles.", COORD, set()),  # a comma splice: "the pot wobbles" is a clause, not a noun phrase
+    ("The stove is slow, I burn my fingers and the pot wobbles.", COORD, set()),
+    # blind review, round 15: a past time frame moved across a present perfect
+    ("Once it was pitched it has been mostly dry.", ADVL, set()),
+    ("I've attached a photo of the tear after the trip.", ADVL, set()),
+    ("Since the repair the stove has been much better.", ADVL, {"The stove has been much better since the repair."}),  # a comma splice: "the pot wobbles" is a clause, not a noun phrase
     ("The tent has a porch, the porch is dry and the pegs are sturdy.", CLAUSE, set()),  # the second "porch" refers back
     ("I think the tent is roomy, the poles are light and the pegs are sturdy.", CLAUSE, set()),  # "I think" covers one item only
     # noun phrases with their own adjectives or articles; three items ending in a complement
