@@ -201,6 +201,9 @@ def _candidates(doc: "Doc", ctx: Context) -> Iterator[Candidate]:
         return
     if any(g.norm(t.text) in _ADDITIVE for t in tokens(doc)):
         return
+    if any(opinion_of(t, lex) is not None and t.pos_ == "ADJ" and any(c.dep_ == "prep" and g.norm(c.text) == "as" for c in t.children)
+           for t in tokens(doc)):
+        return  # a simile: "clear as day" -> "*not unclear as day" (blind review, round 15)
     if not an.clauses:
         yield from _fragment(doc, an, lex)
         return

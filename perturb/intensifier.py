@@ -336,6 +336,8 @@ def _adjective_role(tok: "Token") -> str | None:
             return None  # "we turned poor", "makes it easy": a change of state or a result, not an opinion
         if head.i != tok.i and not _adjective_list(head, tok):
             return None  # "is tidy and I like it": only a plain list of adjectives ("early and cheerful")
+        if any(c.dep_ == "det" for c in tok.children):
+            return None  # "lens cap is a really annoying.": a noun is missing; "*an a bit annoying" (blind review, round 15)
         if not all(t.i in _degree_span(head) or t.dep_ in ("neg",) or _frame_adverb(t)
                    for t in tok.doc[head.head.i + 1 : head.i]):
             return None  # "joaquin phoenix uncomfortable", "is slowly warm": only degree words in between

@@ -84,6 +84,7 @@ moves to or from the start of a sentence is fixed; proper nouns and "I" keep the
 
 from __future__ import annotations
 
+import re
 from typing import TYPE_CHECKING, Iterator
 
 from pairflip.perturb.base import NEGATORS, PUNCT_CLOSE, Candidate, Context, TokenEdit, is_question, lemma, sent_of, sents, tokens
@@ -403,6 +404,8 @@ def _coordination(sent: "Span", ctx: Context) -> Iterator[Candidate]:
     # heads with a "conj" child, found in one pass over the tokens (not a scan of every token's children)
     conj_heads = sorted({t.head.i for t in sent if t.dep_ == "conj" and t.head.i != t.i})
     loose = any(t.text in (":", "-", "--", "(", ")") or t.lower_ in ("either", "neither", "both", "whether") for t in sent)
+    if any(_ELONGATED.search(t.lower_) for t in sent if t.is_alpha):
+        return  # "holds sooooo much music and audio files": emphatic spelling, the parse is unsure (blind review, round 15)
     for hi in conj_heads:
         head = tokens(doc)[hi]
         if head.dep_ == "conj" or not (sent.start <= hi < sent.end):
@@ -786,6 +789,11 @@ def _adverbial(sent: "Span", ctx: Context) -> Iterator[Candidate]:
     yield from _to_end(sent, root, subj, last, scoped)
 
 
+_ELONGATED = re.compile(r"([a-z])\1\1")
+# Verbs that want an object: a fronted "if you have" with none lost it to the parse.
+_TRANSITIVE = frozenset("have get take make need want give find buy use bring".split())
+
+
 def _present_perfect(root: "Token") -> bool:
     """"has been", "I've attached": a present perfect links the event to now, so a past time
     frame ("after the install", "once it was running") moved across it reads badly or attaches
@@ -1008,6 +1016,9 @@ def _to_end(sent: "Span", root: "Token", subj: "Token", last: int, scoped: str) 
     if adv.dep_ == "advcl" or _every_time(adv):
         if scoped or not _clause_adjunct(adv, root):
             return
+        if all(c.dep_ in ("mark", "nsubj", "aux", "advmod", "neg") for c in adv.children) and lemma(adv).lower() in _TRANSITIVE \
+                and not (b < len(doc) and tokens(doc)[b].is_punct):
+            return  # "if you have the appetite choose ...": the object was read as the main clause's subject (round 15)
         if _third_person(t for t in doc[nxt : last + 1]) and any(t.pos_ in ("NOUN", "PROPN") for t in sub):
             return  # "when the manager arrived, she apologised": at the end, "she" could not be the manager
         if end_tok.lower_ in TIME_NOUNS:

@@ -45,6 +45,7 @@ CASES = [
     ("I'm pleased to say it works.", "double-negation/antonym", None),  # "*not annoyed to say" (blind review, round 4)
     ("I like it by far.", "double-negation/verb", None),  # "*don't dislike it by far" (round 5)
     ("Tent approved.", "double-negation/verb", None),  # no object: an adjective-like participle (round 5)
+    ("The lamp is clear as day.", "double-negation/prefix", None),  # a simile: "*not unclear as day" (round 15)
     ("The floor was dirty.", "double-negation/antonym", "The floor wasn't clean."),
     ("The stove is quiet.", "double-negation/antonym", "The stove isn't noisy."),
     ("The stove is noisy.", "double-negation/antonym", "The stove isn't quiet."),

@@ -59,6 +59,8 @@ CASES = [
     ("The zippers feel flimsy.", SOFT, {"The zippers feel a bit flimsy."}),  # unfavourable, predicative
     ("An ugly color.", SOFT, {"A slightly ugly color."}),  # unfavourable, attributive: never "a bit"
     ("The boots are stiff.", SOFT, {"The boots are a bit stiff."}),
+    ("lens cap is a really annoying.", SOFT, set()),  # a noun missing after "a": "*an a bit annoying" (blind review, round 15)
+    ("lens cap is a really annoying.", REM, set()),
     # round-2 blind review: no second degree word, no formulas, attributive softeners after a/an only
     ("The clerk was so bloody lazy.", AMP, set()),
     ("Happy 4th of July to the whole crew.", AMP, set()),

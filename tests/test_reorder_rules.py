@@ -253,6 +253,10 @@ CASES = [
     # blind review, round 15: a past time frame moved across a present perfect
     ("Once it was pitched it has been mostly dry.", ADVL, set()),
     ("I've attached a photo of the tear after the trip.", ADVL, set()),
+    # blind review, round 15 (vader snippets): parses the move cannot trust
+    ("if you have the patience choose the one that you think is best suited to you.", ADVL, set()),  # the object of "have" read as the main subject
+    ("If you have kids, this tent is great.", ADVL, {"This tent is great if you have kids."}),
+    ("and it holds sooooo much food and spare fuel.", COORD, set()),  # emphatic spelling: the parse is unsure
     ("Since the repair the stove has been much better.", ADVL, {"The stove has been much better since the repair."}),  # a comma splice: "the pot wobbles" is a clause, not a noun phrase
     ("The tent has a porch, the porch is dry and the pegs are sturdy.", CLAUSE, set()),  # the second "porch" refers back
     ("I think the tent is roomy, the poles are light and the pegs are sturdy.", CLAUSE, set()),  # "I think" covers one item only
