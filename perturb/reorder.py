@@ -600,6 +600,8 @@ def _coordination_ok(kind: str, conj: list["Token"], toks: list["Span"], texts: 
             return False  # "great coffee and cake": the adjective may cover both; bare pairs are often fixed ("fish and chips")
         if any(lex.lookup(t.lower_, "ADJ") is not None and lex.lookup(t.lower_, "NOUN") is None for t in conj):
             return False  # an adjective the tagger took for a noun ("a light and warm bag")
+        if any(t.lower_ in _YOURE_WORDS and any(c.lower_ == "your" for c in t.children) for t in conj):
+            return False  # "get some headphones and your set": "your" for "you're" (blind review, round 15)
         verb = conj[0].head
         if conj[0].dep_ in ("attr", "nsubj") and any(c.dep_ == "expl" for c in verb.children):
             return False  # "there is a pool and two saunas": the verb agrees with the first conjunct
@@ -790,6 +792,8 @@ def _adverbial(sent: "Span", ctx: Context) -> Iterator[Candidate]:
 
 
 _ELONGATED = re.compile(r"([a-z])\1\1")
+# Words after a "your" that is most likely "you're" ("your set", "your welcome"); common practice.
+_YOURE_WORDS = frozenset("set done good welcome right fine ready sorted wrong sure".split())
 # Verbs that want an object: a fronted "if you have" with none lost it to the parse.
 _TRANSITIVE = frozenset("have get take make need want give find buy use bring".split())
 

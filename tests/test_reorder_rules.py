@@ -257,6 +257,7 @@ CASES = [
     ("if you have the patience choose the one that you think is best suited to you.", ADVL, set()),  # the object of "have" read as the main subject
     ("If you have kids, this tent is great.", ADVL, {"This tent is great if you have kids."}),
     ("and it holds sooooo much food and spare fuel.", COORD, set()),  # emphatic spelling: the parse is unsure
+    ("just get some new pegs and your set.", COORD, set()),  # "your" for "you're": not a noun phrase
     ("Since the repair the stove has been much better.", ADVL, {"The stove has been much better since the repair."}),  # a comma splice: "the pot wobbles" is a clause, not a noun phrase
     ("The tent has a porch, the porch is dry and the pegs are sturdy.", CLAUSE, set()),  # the second "porch" refers back
     ("I think the tent is roomy, the poles are light and the pegs are sturdy.", CLAUSE, set()),  # "I think" covers one item only
