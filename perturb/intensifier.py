@@ -160,11 +160,20 @@ LIST_LINKS = frozenset({",", "and", "or", "&"})
 EXCLAMATIVE = frozenset({"what", "such", "quite", "rather"})
 
 
+# "the only thing / problem / complaint ...": the writer plays the named fault down.
+_MINIMISED_NOUNS = frozenset("thing things problem complaint complaints issue downside gripe niggle negative fault".split())
+
+
 def candidates(doc: "Doc", ctx: Context) -> Iterator[Candidate]:
     """Every intensifier edit the parse supports, in text order."""
     lex = ctx.lexicon
     if any(t.lower_ in CONTRAST and t.pos_ != "NOUN" for t in tokens(doc)):  # "after a while" is no contrast
         return
+    toks = tokens(doc)
+    if any(t.lower_ == "then" and t.i > 0 and toks[t.i - 1].text == "," for t in toks):
+        return  # "The price was great for the first year, then it went up": a turn, the story's end weighs more (round 16)
+    if any(t.lower_ == "only" and t.head.lower_ in _MINIMISED_NOUNS for t in toks):
+        return  # "The only thing I'd change is the bright lights": the one complaint of a positive text (round 16)
     degree = _degree_phrases(lex)
     targets = [(tok, hit) for tok in tokens(doc) for hit in [_target(tok, lex)] if hit is not None]
     if not targets:

@@ -1306,6 +1306,7 @@ NEGATABLE_EXTREME = frozenset({"great"})
 WEAKENING_AFTER_NOT = frozenset({"so", "too", "that", "all", "overly"})
 # a time frame makes a negated event mean "not then" instead of the opposite verdict:
 # "didn't break two weeks after I gave it", "wasn't satisfied, until last night"
+_REPORT_VERBS = frozenset("say tell promise claim explain assure reply".split())
 _ORDINALS = frozenset("first second third fourth fifth sixth seventh eighth ninth tenth umpteenth nth last".split())
 _TIME_UNITS = frozenset("minute hour day week month year fortnight age while".split())
 TIME_FRAME_WORDS = frozenset({"until", "till", "til", "after", "before", "since", "once"})
@@ -1731,6 +1732,9 @@ def clause_doubt(cl: Clause, lexicon: "Lexicon", coordination: bool = False) -> 
         return "a link or tag read as a verb"
     if not _main_like(cl.head):
         return f"opinion clause is a {cl.head.dep_} (not a main clause)"  # "those who don't like it are ..."
+    if cl.head.dep_ == "ccomp" and lemma(cl.head.head).lower() in _REPORT_VERBS and (
+            cl.event or any(g.aux_word(a) in ("will", "would") for a in cl.auxes)):
+        return "a reported promise"  # "The engineer said he would come back": a report, no opinion of the writer's (round 16)
     for t in cl.own:
         if t.i != cl.head.i and t.tag_ in ("VBZ", "VBD", "VBP") and t.dep_ in ("ccomp", "conj", "parataxis", "advcl", "dep"):
             if any(c.dep_ in _SUBJ_DEPS for c in t.children):

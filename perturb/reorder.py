@@ -768,6 +768,11 @@ def _adverbial(sent: "Span", ctx: Context) -> Iterator[Candidate]:
         return  # attachment: "stiff at first but comfortable after a week"
     if any(t.text[:1] in "@#" or t.like_url or t.text in (":", ";") for t in sent):
         return  # tweets with mentions, hashtags or links; lists with colons
+    if any(t.lower_ in ("lol", "lmao", "haha", "rofl", "omg") for t in sent):
+        return  # "wifi drops every time the microwave is on lol": the tag would land mid-sentence (round 16)
+    if any(t.lower_ in ("now", "here", "again", "on", "up", "back") and t.i + 2 < len(doc) and tokens(doc)[t.i + 1].lower_ == "and"
+           and tokens(doc)[t.i + 2].lower_ in ("then", "there", "again", "off", "down", "forth") for t in sent):
+        return  # "now and then", "on and off": a fixed pair, not two adverbials (round 16)
     # negation and focus words: the move would change their scope ("didn't leak in the rain",
     # "only leaks in heavy rain"); a sentence adverb set off by a comma is outside any scope
     negated = any(t.lower_ in NEGATORS or t.dep_ == "neg" for t in sent)

@@ -61,6 +61,10 @@ CASES = [
     ("The boots are stiff.", SOFT, {"The boots are a bit stiff."}),
     ("lens cap is a really annoying.", SOFT, set()),  # a noun missing after "a": "*an a bit annoying" (blind review, round 15)
     ("lens cap is a really annoying.", REM, set()),
+    # blind review, round 16
+    ("The price was great for the first year, then it went up by a third.", AMP, set()),  # a turn: the end weighs more
+    ("The only thing I'd change is the bright lights on the stove.", AMP, set()),  # the one complaint of a positive text
+    ("The lights on the stove are bright.", AMP, {"The lights on the stove are very bright."}),
     # round-2 blind review: no second degree word, no formulas, attributive softeners after a/an only
     ("The clerk was so bloody lazy.", AMP, set()),
     ("Happy 4th of July to the whole crew.", AMP, set()),

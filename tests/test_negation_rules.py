@@ -424,6 +424,7 @@ CASES = [
     # blind review, round 15: "*Not a reliable internet" (mass nouns take no article)
     ("Reliable internet, decent maps, fair price.", "negation/fragment", "Not reliable internet, not decent maps, not a fair price."),
     ("Really fast broadband.", "negation/fragment", "Not really fast broadband."),
+    ("The guide said he would come back on Friday.", NO, NO),  # reported speech (blind review, round 16)
 ]
 
 
