@@ -827,8 +827,8 @@ def _noun_phrase_list(sent, root: "Token", toks: list["Token"], ops: list["Token
             return None
         if any(not c.is_punct for c in adj.children):
             return None  # "really good range": a degree word under the negation reads as a hedge
-        phrase = sorted([x for x in noun.subtree if x.i not in ids and not any(x.i in {y.i for y in i2.subtree} for i2 in items if i2.i != noun.i and i2.i in {a.i for a in noun.subtree})] + [noun], key=lambda x: x.i)
-        phrase = [x for x in phrase if not x.is_punct and x.dep_ != "cc"]
+        # the checks above leave the noun with only an article, its adjective and compound nouns
+        phrase = sorted([c for c in noun.children if c.dep_ in ("det", "amod", "compound")] + [noun], key=lambda x: x.i)
         first = phrase[0]
         words = _not_words(first, noun, [x for x in phrase if x.i < noun.i], opinion_of(adj, lexicon).polarity)
         if words.startswith("!"):
