@@ -50,7 +50,7 @@ from typing import TYPE_CHECKING, Iterator
 
 from pairflip.perturb import grammar as g
 from pairflip.perturb.base import NEGATORS, Candidate, Context, TokenEdit, match_case, sents, tokens
-from pairflip.perturb.negation import (indefinite_for, analyse, clause_doubt, dropped_subject, insertion, opinion_of,
+from pairflip.perturb.negation import (indefinite_for, analyse, elliptical_echo, clause_doubt, dropped_subject, insertion, opinion_of,
                                        or_for_and, predicate_opinion, text_guard)
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -204,6 +204,8 @@ def _candidates(doc: "Doc", ctx: Context) -> Iterator[Candidate]:
     if any(opinion_of(t, lex) is not None and t.pos_ == "ADJ" and any(c.dep_ == "prep" and g.norm(c.text) == "as" for c in t.children)
            for t in tokens(doc)):
         return  # a simile: "clear as day" -> "*not unclear as day" (blind review, round 15)
+    if elliptical_echo(an) is not None:
+        return  # "are excellent -- as is the quality" -> "*aren't bad -- as is" (blind review, round 16v)
     if not an.clauses:
         yield from _fragment(doc, an, lex)
         return

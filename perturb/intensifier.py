@@ -125,7 +125,7 @@ LINKING_VERBS = frozenset("be feel look seem sound stay remain appear taste smel
 FORMULA_NOUNS = frozenset(
     "luck morning night evening afternoon birthday bday anniversary holiday holidays christmas xmas "
     "easter halloween weekend year day week job deal riddance grief lord god heavens times time one "
-    "thing lot chance".split()
+    "thing lot chance going".split()  # "good going" (blind review, round 16v)
 )
 # Expletive degree words ("so bloody lazy"): already a degree, so no second one is added.
 SWEAR_DEGREE = frozenset({"bloody", "damn", "damned", "freaking", "fricking", "frigging", "fucking", "effing", "super"})
@@ -507,6 +507,11 @@ def _negated(tok: "Token") -> bool:
         node = node.head
 
 
+# Verbs of advice to a buyer; with no subject they give an order even where the tagger reads a
+# present tense ("2) buy a good pair"), which a dropped "I" hardly ever does ("buy" is not "love").
+ADVICE_VERBS = frozenset("buy choose pick order avoid consider".split())
+
+
 def _imperative(tok: "Token") -> bool:
     """Inside a clause with a bare verb and no subject: a wish or an order ("have a good flight")."""
     node = tok
@@ -516,6 +521,8 @@ def _imperative(tok: "Token") -> bool:
             all(c.text.startswith("@") for c in subjects) and (node.tag_ == "VB" or subjects)
         ):
             return True  # "@anon have a good flight": the parser takes the mention for a subject
+        if node.tag_ == "VBP" and node.dep_ == "ROOT" and not subjects and lemma(node) in ADVICE_VERBS:
+            return True  # "2) buy a good pair of ...": a list marker makes the tagger read a present (round 16v)
         if node.head.i == node.i:
             return False
         node = node.head

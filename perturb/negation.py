@@ -1226,11 +1226,20 @@ def doubtful(an: Analysis) -> str | None:
         return "a predicate without an opinion word follows an opinion predicate"
     if any(t.dep_ == "dep" and not is_noise(t) and t.pos_ not in ("INTJ", "PUNCT", "X", "SYM") for cl in an.clauses for t in cl.own):
         return "the parser could not attach a word"
+    return elliptical_echo(an)
+
+
+def elliptical_echo(an: Analysis) -> str | None:
+    """Why an elliptical clause ("as is the stove", "and the dog did too") forbids an edit, or None:
+    it echoes the clause an edit would change, and would then echo the wrong polarity."""
+    if not (an.clauses or an.fragments):
+        return None
     first = an.clauses[0].head if an.clauses else an.fragments[0].root
     for t in tokens(first.doc):
         if t.pos_ == "AUX" and t.dep_ not in ("aux", "auxpass") and any(
             c.dep_ in ("mark", "advmod", "cc") and g.norm(c.text) in ("as", "so", "nor", "neither") and c.i < t.i for c in t.children
-        ) and not any(c.dep_ in ("acomp", "attr", "oprd", "xcomp", "ccomp", "dobj") for c in t.children):
+        ) and not any(c.dep_ in ("acomp", "attr", "oprd", "xcomp", "ccomp", "dobj") or (c.dep_ == "nsubj" and c.i < t.i)
+                      for c in t.children):  # "as it is" (subject first) means "in its present state": no echo
             return "an elliptical clause echoes another clause"  # "is a plus, as are the ringtones" (blind review, round 4)
     for cl in an.others:  # "... and the dog did too": an echo of the clause we would edit
         if g.base_form(cl.head) == "do" and not any(c.dep_ in ("dobj", "ccomp", "xcomp") for c in cl.head.children):

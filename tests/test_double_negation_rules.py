@@ -46,6 +46,9 @@ CASES = [
     ("I like it by far.", "double-negation/verb", None),  # "*don't dislike it by far" (round 5)
     ("Tent approved.", "double-negation/verb", None),  # no object: an adjective-like participle (round 5)
     ("The lamp is clear as day.", "double-negation/prefix", None),  # a simile: "*not unclear as day" (round 15)
+    ("The seams are excellent -- as is the zip.", "double-negation/antonym", None),  # the echo would say "*aren't bad -- as is" (round 16v)
+    ("The seams are excellent.", "double-negation/antonym", "The seams aren't bad."),  # the same clause alone
+    ("It's fine as it is.", "double-negation/antonym", "It's not bad as it is."),  # "as it is" echoes nothing
     ("The floor was dirty.", "double-negation/antonym", "The floor wasn't clean."),
     ("The stove is quiet.", "double-negation/antonym", "The stove isn't noisy."),
     ("The stove is noisy.", "double-negation/antonym", "The stove isn't quiet."),

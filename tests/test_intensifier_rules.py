@@ -170,6 +170,9 @@ CASES = [
     ("We turned poor last year.", SOFT, set()),  # "turn": a change of state, a fact
     ("The answer was clear as day.", SOFT, set()),  # simile
     ("Good luck with the trip!", SOFT, set()),  # well-wish
+    ("(good going, crew).", AMP, set()),  # a formula of praise: "*very good going" (blind review, round 16v)
+    ("2) buy a good pair of boots unless you already own one.", AMP, set()),  # advice after a list marker (round 16v)
+    ("I bought a good pair of boots.", AMP, {"I bought a very good pair of boots."}),  # a report, not advice
     ("Happy birthday to the crew!", AMP, set()),
     ("The cabin was nice and relaxed.", SOFT, set()),  # "nice and X"
     ("We saw Grateful Dead live.", SOFT, set()),  # a name

@@ -397,6 +397,7 @@ CASES = [
     ("The lamp was bright and reliable.", "negation/copula", "The lamp wasn't bright or reliable."),
     ("The fly is light and flimsy.", "negation/copula", None),  # mixed polarity: no clear opposite
     ("The screen is a plus, as are the pegs.", "negation/copula", None),  # an elliptical echo
+    ("It's fine as it is.", "negation/copula", "It's not fine as it is."),  # "as it is": its present state, no echo
     ("The stove is great.", "negation/copula", "The stove isn't great."),  # "great": read as the opposite when negated
     ("The tent is good. The stove is nice.", "negation/copula", "The tent isn't good. The stove isn't nice."),
     # blind review, round 14 (Harbour Lane), each failure with a control that still toggles
