@@ -18,6 +18,11 @@ Rules and their operations (``meta["op"]``):
     softener ("very noisy" -> "a bit noisy"). Extreme words are never softened.
 ``intensifier/remove`` (weaken)
     an amplifier is deleted ("very comfortable" -> "comfortable").
+``intensifier/negated-amplify`` (weaken)
+    *very* before a favourable predicative adjective under a negated linking verb ("isn't
+    helpful" -> "isn't very helpful": the understatement is the milder complaint).
+``intensifier/negated-remove`` (strengthen)
+    the degree word of such a phrase is deleted ("not that helpful" -> "not helpful").
 
 The softener is chosen by polarity and position: *fairly* with favourable words ("fairly
 roomy"), *a bit* with unfavourable predicative adjectives ("is a bit noisy"; never before an
@@ -29,7 +34,9 @@ the English Language, ch. 8 on downtoners).
 
 Skipped, because the expectation would be unclear or the result ungrammatical: questions;
 words inside a negated scope ("not very comfortable": removing *very* makes the complaint
-stronger, not weaker); hypothetical or wished-for contexts (if, would, should, wish, hope,
+stronger, not weaker), except by the two ``negated-`` rules above, which take only one negator,
+on the linking verb, with nothing else between it and the adjective, no emphasis ("not helpful at
+all") and no unfavourable word ("isn't very bad" is no clear step from "isn't bad"); hypothetical or wished-for contexts (if, would, should, wish, hope,
 want, expect); comparatives and superlatives ("lighter", "best", "more comfortable");
 words already carrying another degree word (too, quite, rather, as ... as, how, enough,
 barely, ...) or any other adverb ("surprisingly cool"), except that *so* with no result clause
@@ -75,6 +82,8 @@ RULES = {
     "intensifier/amplify": "strengthen",
     "intensifier/soften": "weaken",
     "intensifier/remove": "weaken",
+    "intensifier/negated-amplify": "weaken",
+    "intensifier/negated-remove": "strengthen",
 }
 
 # The words the rules insert (all are listed in lexicons/intensifiers.tsv).
@@ -183,7 +192,10 @@ def candidates(doc: "Doc", ctx: Context) -> Iterator[Candidate]:
         return
     for tok, (entry, role) in targets:
         sent = sent_of(tok)
-        if is_question(sent) or _negated(tok) or _irrealis(tok, role) or _imperative(tok):
+        if is_question(sent) or _irrealis(tok, role) or _imperative(tok):
+            continue
+        if _negated(tok):
+            yield from _under_negation(doc, tok, entry, role)
             continue
         if role == "attributive" and lemma(tok.head).lower() in QUANTITY_NOUNS:
             continue
@@ -505,6 +517,51 @@ def _negated(tok: "Token") -> bool:
         if node.head.i == node.i:
             return False
         node = node.head
+
+
+# Degree words that soften a negated favourable word ("not very helpful", "not that clear", "not so
+# good", "not overly impressed"): "not very X" is an understatement, milder than "not X" (Quirk et
+# al. 1985 on a negated amplifier acting as a downtoner, from memory). VADER scores it the other
+# way (it boosts "helpful" before negating it), so blind review, not VADER, checks these pairs.
+NEGATED_DEGREE = frozenset({"very", "really", "that", "so", "overly", "particularly", "especially", "terribly"})
+# Favourable words that pass or fail a standard rather than come in degrees once negated.
+_YES_NO_WORDS = frozenset({"acceptable", "appropriate", "correct", "legit", "ok", "okay", "right"})
+# Words that make a negation emphatic ("not helpful at all"): "very" would clash with them.
+_NEG_EMPHASIS = frozenset({"all", "whatsoever", "slightest", "remotely", "even", "bit", "one", "single", "way"})
+
+
+def _under_negation(doc: "Doc", tok: "Token", entry: "OpinionWord", role: str) -> Iterator[Candidate]:
+    """Grade a favourable predicative adjective right under a negated linking verb.
+
+    "isn't helpful" -> "isn't very helpful" weakens the complaint (``intensifier/negated-amplify``);
+    "isn't very helpful" -> "isn't helpful" strengthens it (``intensifier/negated-remove``). Only a
+    single "not"/"n't"/"never" on the linking verb itself, with nothing but the verb between it and
+    the adjective (or its one degree word); unfavourable words are left alone ("isn't very bad" is
+    no clear step from "isn't bad", which reads as praise)."""
+    if role != "predicative" or entry.polarity != 1 or entry.grade != "gradable" or tok.dep_ != "acomp":
+        return
+    if tok.lower_ in _YES_NO_WORDS:
+        return  # "That's not acceptable": a verdict with no degree; "*not very acceptable"
+    head = tok.head
+    sent = sent_of(tok)
+    negators = [t for t in sent if _is_negator(t)]
+    if len(negators) != 1 or negators[0].head.i != head.i or negators[0].dep_ != "neg" or negators[0].i > tok.i:
+        return
+    if any(t.lower_ in _NEG_EMPHASIS for t in sent):
+        return  # "not helpful at all", "not even close": an emphatic negation
+    neg = negators[0]
+    mods = [c for c in tok.children if c.dep_ in ("advmod", "npadvmod")]
+    base_meta = {"target": tok.text, "polarity": entry.polarity, "grade": entry.grade, "role": role}
+    if not mods:
+        if any(t.i != head.i for t in doc[neg.i + 1 : tok.i]):
+            return  # "isn't always helpful": another word stands between
+        yield _candidate(doc, tok, tok.i, [AMPLIFIER], "intensifier/negated-amplify", dict(base_meta, op="insert", word=AMPLIFIER))
+        return
+    if len(mods) != 1 or mods[0].lower_ not in NEGATED_DEGREE or mods[0].i != tok.i - 1 or any(c.i < tok.i for c in mods[0].children):
+        return
+    if any(t.i != head.i for t in doc[neg.i + 1 : mods[0].i]):
+        return
+    yield _candidate(doc, tok, mods[0].i, [], "intensifier/negated-remove", dict(base_meta, op="remove", removed=mods[0].lower_))
 
 
 # Verbs of advice to a buyer; with no subject they give an order even where the tagger reads a

@@ -25,6 +25,7 @@ from pairflip.perturb.lexicon import load_lexicon
 from pairflip.perturb.nlp import load_nlp
 
 AMP, SOFT, REM = "intensifier/amplify", "intensifier/soften", "intensifier/remove"
+NAMP, NREM = "intensifier/negated-amplify", "intensifier/negated-remove"
 
 
 @pytest.fixture(scope="module")
@@ -235,6 +236,24 @@ CASES = [
     # later items of a verbless list of noun phrases
     ("Friendly staff, fair prices.", AMP, {"Very friendly staff, fair prices.", "Friendly staff, very fair prices."}),
     ("Friendly staff and the prices are fair.", AMP, {"Friendly staff and the prices are very fair."}),  # a verb: no fragment list
+    # a favourable word under a negated linking verb: "not very X" is the milder complaint
+    ("The staff weren't helpful.", NAMP, {"The staff weren't very helpful."}),
+    ("The staff weren't helpful.", AMP, set()),  # never "strengthen" under a negation
+    ("I'm not happy with the tent.", NAMP, {"I'm not very happy with the tent."}),
+    ("The rooms are never clean.", NAMP, {"The rooms are never very clean."}),
+    ("The staff weren't very helpful.", NREM, {"The staff weren't helpful."}),
+    ("The map was not that clear.", NREM, {"The map was not clear."}),
+    ("I was not overly impressed.", NREM, {"I was not impressed."}),
+    ("The staff weren't very helpful.", REM, set()),  # removal under a negation strengthens: not this rule
+    ("It's not helpful at all.", NAMP, set()),  # emphatic: "*not very helpful at all"
+    ("The stove isn't bad.", NAMP, set()),  # unfavourable: "isn't very bad" is no clear step from "isn't bad"
+    ("The stove isn't very bad.", NREM, set()),
+    ("The tent isn't great.", NAMP, set()),  # extreme: "*not very great"
+    ("That's not acceptable.", NAMP, set()),  # pass or fail, no degree: "*not very acceptable"
+    ("It wasn't always reliable.", NAMP, set()),  # another word between the negator and the adjective
+    ("It isn't good enough.", NAMP, set()),
+    ("Isn't it good?", NAMP, set()),  # a question
+    ("I don't think it's helpful.", NAMP, set()),  # the negator sits on another verb
 ]
 
 
@@ -252,7 +271,7 @@ def test_meta_records_the_operation(nlp, lex):
 
 
 def test_rules_expectations():
-    assert intensifier.RULES == {AMP: "strengthen", SOFT: "weaken", REM: "weaken"}
+    assert intensifier.RULES == {AMP: "strengthen", SOFT: "weaken", REM: "weaken", NAMP: "weaken", NREM: "strengthen"}
 
 
 @pytest.mark.parametrize(
