@@ -371,6 +371,21 @@ def doc_text(doc: "Doc") -> str:
     return text
 
 
+_SHORT_TIME = frozenset("minute minutes hour hours day days week weeks fortnight month months year years".split())
+
+
+def limited_duration(doc: Any) -> bool:
+    """A time span played down ("enjoyed it for just over a week", "lasted only a month"): the text
+    implies the product then failed, so its praise is not its opinion (blind review, round 17v)."""
+    toks = list(doc)
+    for t in toks:
+        if t.lower_ in ("just", "only") and any(u.lower_ in _SHORT_TIME for u in toks[t.i + 1 : t.i + 5]):
+            near = {u.lower_ for u in toks[max(0, t.i - 2) : t.i + 2]}
+            if near & {"for", "last", "lasted", "lasts", "lasting", "survived", "worked"}:
+                return True  # not "only took ten minutes": quick, which is praise
+    return False
+
+
 def is_question(sent: Any) -> bool:
     """The sentence ends with a question mark (``sent.text.rstrip().endswith("?")``, without
     rebuilding the sentence's text)."""
@@ -418,6 +433,16 @@ def phrase_spans(doc: "Doc", lexicon: "Lexicon") -> list[PhraseSpan]:
     return found
 
 
+_OWN_DOINGS = frozenset("pay submit return send renew".split())
+
+
+def _own_payment(head: "Token") -> bool:
+    """Is this phrase on a verb of the writer's own doing ("I paid on time", "we returned it on time")?"""
+    verb = head.head
+    return lemma(verb).lower() in _OWN_DOINGS and any(
+        c.dep_ == "nsubj" and c.lower_ in ("i", "we") for c in verb.children)
+
+
 def _phrase_spans(doc: "Doc", lexicon: "Lexicon") -> list[PhraseSpan]:
     toks = tokens(doc)
     forms = [(t.lower_.replace("’", "'"), lemma(t).lower()) for t in toks]
@@ -435,6 +460,8 @@ def _phrase_spans(doc: "Doc", lexicon: "Lexicon") -> list[PhraseSpan]:
                 continue  # not one constituent: "worth it" in "worth it, it ..."
             if not _head_fits(toks[heads[0]], lexicon.phrases[words].pos):
                 continue  # "high priced" is no "high price"; "rip off" the noun is no verb
+            if words == ("on", "time") and _own_payment(toks[heads[0]]):
+                continue  # "even though I paid on time": the writer's own doing, not the service's (round 17)
             out.append(PhraseSpan(i, j, heads[0], lexicon.phrases[words]))
             i = j - 1
             break

@@ -49,7 +49,7 @@ from __future__ import annotations
 from typing import TYPE_CHECKING, Iterator
 
 from pairflip.perturb import grammar as g
-from pairflip.perturb.base import NEGATORS, Candidate, Context, TokenEdit, match_case, sents, tokens
+from pairflip.perturb.base import NEGATORS, Candidate, Context, TokenEdit, limited_duration, match_case, sents, tokens
 from pairflip.perturb.negation import (indefinite_for, analyse, elliptical_echo, clause_doubt, dropped_subject, insertion, opinion_of,
                                        or_for_and, predicate_opinion, text_guard)
 
@@ -87,6 +87,8 @@ _NO_ARTICLE = frozenset({"staff", "personnel", "produce", "veg", "fruit", "bread
 
 def candidates(doc: "Doc", ctx: Context) -> Iterator[Candidate]:
     drop = _amplifiers(doc, ctx)
+    if any(i + 1 < len(doc) and doc[i + 1].text == "," for i in drop):
+        return  # "Really, really good.": the repeated amplifier and its comma -> "*, Not bad." (blind review, round 17)
     # A semicolon joins clauses as a comma does: one weakened clause among clauses of one polarity
     # keeps the text's direction ("The coffee is great; the desks are clean"). The clause analysis
     # reads a copy with commas (the shared guards refuse semicolons, for the negation family).
@@ -204,6 +206,8 @@ def _candidates(doc: "Doc", ctx: Context) -> Iterator[Candidate]:
     if any(opinion_of(t, lex) is not None and t.pos_ == "ADJ" and any(c.dep_ == "prep" and g.norm(c.text) == "as" for c in t.children)
            for t in tokens(doc)):
         return  # a simile: "clear as day" -> "*not unclear as day" (blind review, round 15)
+    if limited_duration(doc):
+        return  # "was easy and we enjoyed it for just over a week": the praise is not the point
     if elliptical_echo(an) is not None:
         return  # "are excellent -- as is the quality" -> "*aren't bad -- as is" (blind review, round 16v)
     if not an.clauses:

@@ -68,7 +68,7 @@ from __future__ import annotations
 
 from typing import TYPE_CHECKING, Iterator
 
-from pairflip.perturb.base import (NEGATORS, Candidate, Context, TokenEdit, is_question, lemma, linking_use, phrase_at,
+from pairflip.perturb.base import (NEGATORS, Candidate, Context, TokenEdit, is_question, lemma, limited_duration, linking_use, phrase_at,
                                    sent_of, sents, tokens)
 from pairflip.perturb.lexicon import OpinionWord
 
@@ -181,6 +181,8 @@ def candidates(doc: "Doc", ctx: Context) -> Iterator[Candidate]:
     toks = tokens(doc)
     if any(t.lower_ == "then" and t.i > 0 and toks[t.i - 1].text == "," for t in toks):
         return  # "The price was great for the first year, then it went up": a turn, the story's end weighs more (round 16)
+    if limited_duration(doc):
+        return  # "set up was easy and we enjoyed it for just over a week": the praise is not the point (round 17v)
     if any(t.lower_ == "only" and t.head.lower_ in _MINIMISED_NOUNS for t in toks):
         return  # "The only thing I'd change is the bright lights": the one complaint of a positive text (round 16)
     degree = _degree_phrases(lex)
@@ -223,6 +225,8 @@ def _target(tok: "Token", lex: "Lexicon") -> tuple["OpinionWord", str] | None:
         return None
     if any(c.lower_ in ("than", "enough") for c in tok.children):
         return None
+    if any(c.dep_ == "conj" and c.pos_ == "NOUN" and not any(k.dep_ in ("det", "amod") for k in c.children) for c in tok.children):
+        return None  # "Damp and mould in every bedroom": coordinated with a bare noun, "damp" is a noun (round 17)
     # adjectives
     if _is_adjective(tok, lex):
         entry = lex.lookup(tok.lower_, "ADJ")

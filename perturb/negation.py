@@ -119,7 +119,7 @@ PPI = {"some", "something", "someone", "somebody", "somewhere", "already", "some
 # Quantifiers and frequency words: a negation would bind them ("doesn't always work" is not
 # the opposite of "always works"); skip.
 SCOPE_WORDS = {"always", "usually", "often", "sometimes", "all", "every", "everything", "everyone",
-               "everybody", "many", "most", "each"}
+               "everybody", "many", "most", "each", "throughout"}  # "throughout": round 17
 # After "not" these read as a different construction ("not exactly great"): no removal.
 _NOT_FOLLOWERS = {"only", "just", "even", "exactly", "necessarily", "quite", "that", "much", "all",
                   "entirely", "really", "sure"}
@@ -1209,6 +1209,11 @@ def _past_report(cl: Clause) -> bool:
     return cl.head.tag_ == "VBD" or any(a.tag_ == "VBD" for a in cl.auxes)
 
 
+def _progressive(cl: Clause) -> bool:
+    """A clause in a progressive tense: "is coming up", "are leaking" (a fault as it happens)."""
+    return cl.head.tag_ == "VBG" and any(lemma(a).lower() == "be" for a in cl.auxes)
+
+
 def clause_polarities(cl: Clause, lexicon: "Lexicon") -> set[int]:
     """The polarities a clause's opinion words give it as written (a negated one counts reversed;
     a negated expected event is a complaint)."""
@@ -1744,6 +1749,8 @@ def clause_doubt(cl: Clause, lexicon: "Lexicon", coordination: bool = False) -> 
     if cl.head.dep_ == "ccomp" and lemma(cl.head.head).lower() in _REPORT_VERBS and (
             cl.event or any(g.aux_word(a) in ("will", "would") for a in cl.auxes)):
         return "a reported promise"  # "The engineer said he would come back": a report, no opinion of the writer's (round 16)
+    if cl.head.dep_ == "ccomp" and any(c.dep_ == "neg" for c in cl.head.head.children):
+        return "a complement of a negated verb"  # "i don't think i was asking too much" -> "*don't think i wasn't" (round 17v)
     for t in cl.own:
         if t.i != cl.head.i and t.tag_ in ("VBZ", "VBD", "VBP") and t.dep_ in ("ccomp", "conj", "parataxis", "advcl", "dep"):
             if any(c.dep_ in _SUBJ_DEPS for c in t.children):
@@ -1895,7 +1902,10 @@ def plan(doc: "Doc", ctx: Context) -> "Candidate | str":
     for o in an.others:
         if not _embedded(o) and g.aux_kind(o.head) == "be" and any(c.dep_ in ("acomp", "attr") and c.pos_ in ("ADJ", "NOUN", "ADV") for c in o.head.children):
             return "a plain clause may carry an unseen opinion"  # "and it is mostly idiot proof", "was five hours late" (round 11)
-        if not _embedded(o) and _past_report(o) and (o.subj is None or g.norm(o.subj.text) not in _PERSONS) and (
+        if (o.other_negs or o.negs and o.subj is not None and (o.subj.pos_ in ("NOUN", "PROPN") or g.norm(o.subj.text) == "they")) \
+                and not _embedded(o) and o.head.dep_ in ("ROOT", "conj"):  # not "I don't camp often", "it does not rain"
+            return "a negated clause left as it is"  # "and nobody seems to know who is dealing with what" (round 17)
+        if not _embedded(o) and (_past_report(o) or _progressive(o)) and (o.subj is None or g.norm(o.subj.text) not in _PERSONS) and (
                 o.head.head.i in opinion_heads and o.head.dep_ == "conj" or any(c.dep_ == "conj" and c.i in opinion_heads for c in o.head.children)):
             return "a plain clause may carry an unseen opinion"  # "and the butter had melted", "and glass got into the pasta" (round 11)
         if (o.negs or o.other_negs) and o.head.dep_ in ("relcl", "advcl") and _comma_which(o):

@@ -108,6 +108,8 @@ ANAPHORS = frozenset(
     "it its itself they them their theirs themselves this that these those he him his she her hers one ones "
     "which who whom whose mine yours ours".split()
 )
+# Quantifiers that stand for a noun said before them ("some [staff]", "others", "the rest").
+_ELLIPTIC_SUBJECTS = frozenset("some others other many most few several both all rest each either another".split())
 # Fixed binomials whose order is idiomatic (common practice; a short list for review text).
 BINOMIALS = frozenset(
     tuple(p.split("+"))
@@ -444,6 +446,10 @@ def _coordination(sent: "Span", ctx: Context) -> Iterator[Candidate]:
             continue
         if ccs[0].i > spans[-1][0] or ccs[0].i < spans[-2][1]:
             continue  # the coordinator must come right before the last conjunct
+        before = tokens(doc)[spans[0][0] - 1] if spans[0][0] > sent.start else None
+        if kind == "adj" and before is not None and before.dep_ in ("amod", "advmod") and before.head.i not in ids \
+                and before.pos_ in ("ADJ", "ADV"):
+            continue  # "less haze and astonishingly real colors": "less" scopes over the first item only (round 17v)
         after = spans[-1][1]
         if kind in ("adj", "adv") and after < sent.end and tokens(doc)[after].lower_ == "to" and tokens(doc)[after].head.i not in ids:
             continue  # "dark, stuffy and hard to move around in" misparsed: the infinitive goes with the last one
@@ -734,6 +740,10 @@ def _reason(tok: "Token") -> bool:
     return tok.lower_ in ("because", "due", "thanks") and tok.left_edge.i == tok.i
 
 
+# Verbs of saying whose complement clause the parser may take for the main clause.
+_SAY_VERBS = frozenset("tell say promise assure inform hear write reply answer".split())
+
+
 def _clause_adjunct(tok: "Token", root: "Token") -> bool:
     """An adverbial clause of time, condition or reason that may stand at either end ("when we
     arrived", "if you like seafood", "because the staff are lovely")."""
@@ -749,6 +759,8 @@ def _clause_adjunct(tok: "Token", root: "Token") -> bool:
         verb = tok
     if not any(c.dep_ in ("nsubj", "nsubjpass", "expl") for c in verb.children):
         return False  # "after waiting an hour": the subject is the main clause's
+    if lemma(verb).lower() in _SAY_VERBS and not any(c.dep_ in ("ccomp", "dobj", "xcomp", "dative") for c in verb.children):
+        return False  # "Each time I get told someone will call": what was told is the "main" clause (round 17)
     if len(sub) > 14:
         return False
     if any(t.dep_ == "pcomp" and t.pos_ == "VERB" for t in sub):
@@ -959,11 +971,15 @@ def _to_front(sent: "Span", root: "Token", subj: "Token", last: int, scoped: str
     if any(_loose_punct(t) and t.i != a - 1 and t.i <= last for t in sent):
         return  # "billed me twice, 3 and 3 on the same morning": an appended list, another comma's phrase
     sub = list(adv.subtree)
+    if any(t.dep_ == "conj" and t.head.dep_ == "pobj" and t.right_edge.i == a - 1 for t in sent):
+        return  # "one stopped in february and the other in march": the phrase belongs to a gapped clause (round 17v)
     if adv.dep_ == "advcl" or _every_time(adv):
         if scoped or not _clause_adjunct(adv, root):
             return
         if _third_person(t for t in doc[sent.start : a]) and any(t.pos_ in ("NOUN", "PROPN") for t in sub):
             return  # "it broke when the kids used the tent": in front, "it" would mean the tent
+        if sub[0].lower_ == "when" and any(lemma(t).lower() in TIME_NOUNS for t in subj.subtree):
+            return  # "the day finally arrived when i was sure": a relative clause of "the day" (round 17v)
         kind = "clause"
     else:
         stance = adv.dep_ == "advmod" and adv.lower_ in STANCE_ADVERBS
@@ -1048,6 +1064,9 @@ def _to_end(sent: "Span", root: "Token", subj: "Token", last: int, scoped: str) 
             return
         if adv.dep_ == "npadvmod" and adv.lower_ == "time" and any(c.dep_ in ("ccomp", "parataxis", "advcl") for c in root.children):
             return  # "every time the file is corrupt the system freezes": the opening "every time" heads a clause
+        if adv.dep_ == "npadvmod" and adv.lower_ == "time" and not has_comma and any(c.lower_ in ("every", "each") for c in adv.children) \
+                and any(t.i > root.i and t.pos_ in ("VERB", "AUX") and any(c.dep_ == "nsubj" for c in t.children) for t in sent):
+            return  # "Each time I open the app it crashes" read as "open ... the app (that) it crashes": a clause follows
         if any(t.pos_ in ("VERB", "AUX") or t.dep_ in ("relcl", "acl", "advcl", "mark") for t in sub):
             return
         if lemma(root) == "be" and not any(c.dep_ in ("acomp", "attr") for c in root.children):
@@ -1117,6 +1136,8 @@ def _clauses(sent: "Span", ctx: Context) -> Iterator[Candidate]:
         return  # a comma inside a clause ("..., which I like") would not travel well
     if any(t.lower_ in ANAPHORS and not (t.dep_ == "det" and t.lower_ in DEMONSTRATIVES) or t.lower_ in SEQUENCE_WORDS for t in words):
         return  # "the chair is sturdy and my dog loves it"; a demonstrative article ("this cafe") points outside
+    if subj2[0].pos_ in ("PRON", "DET", "NUM", "ADJ") and subj2[0].lower_ in _ELLIPTIC_SUBJECTS:
+        return  # "Some staff are brilliant and some clearly don't care": "some" means "some staff" (round 17)
     nouns1 = {lemma(t).lower() for t in doc[start : end1] if t.pos_ == "NOUN"}
     nouns2 = {lemma(t).lower() for t in doc[cc.i + 1 : last + 1] if t.pos_ == "NOUN"}
     if nouns1 & nouns2:

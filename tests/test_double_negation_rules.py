@@ -49,6 +49,10 @@ CASES = [
     ("The seams are excellent -- as is the zip.", "double-negation/antonym", None),  # the echo would say "*aren't bad -- as is" (round 16v)
     ("The seams are excellent.", "double-negation/antonym", "The seams aren't bad."),  # the same clause alone
     ("It's fine as it is.", "double-negation/antonym", "It's not bad as it is."),  # "as it is" echoes nothing
+    ("Really, really good.", "double-negation/antonym", None),  # the repeated amplifier left "*, Not bad." (round 17)
+    ("Really good.", "double-negation/antonym", "Not bad."),
+    ("The team have been amazing throughout.", "double-negation/antonym", None),  # "*haven't been bad throughout" (round 17)
+    ("Set up was easy and we enjoyed it for just over a week.", "double-negation/antonym", None),  # implied failure (round 17v)
     ("The floor was dirty.", "double-negation/antonym", "The floor wasn't clean."),
     ("The stove is quiet.", "double-negation/antonym", "The stove isn't noisy."),
     ("The stove is noisy.", "double-negation/antonym", "The stove isn't quiet."),

@@ -174,6 +174,11 @@ CASES = [
     ("(good going, crew).", AMP, set()),  # a formula of praise: "*very good going" (blind review, round 16v)
     ("2) buy a good pair of boots unless you already own one.", AMP, set()),  # advice after a list marker (round 16v)
     ("I bought a good pair of boots.", AMP, {"I bought a very good pair of boots."}),  # a report, not advice
+    # blind review, rounds 17 (Fellgate) and 17v
+    ("Avoid. Damp and mould in every bedroom.", AMP, set()),  # "damp" coordinated with a bare noun is a noun
+    ("Set up was easy and we enjoyed it for just over a week.", AMP, set()),  # the short span implies a failure
+    ("The tent was great and lasted only a month.", AMP, set()),
+    ("It was easy, only took ten minutes.", AMP, {"It was very easy, only took ten minutes."}),  # quick is praise
     ("Happy birthday to the crew!", AMP, set()),
     ("The cabin was nice and relaxed.", SOFT, set()),  # "nice and X"
     ("We saw Grateful Dead live.", SOFT, set()),  # a name

@@ -426,6 +426,16 @@ CASES = [
     ("Reliable internet, decent maps, fair price.", "negation/fragment", "Not reliable internet, not decent maps, not a fair price."),
     ("Really fast broadband.", "negation/fragment", "Not really fast broadband."),
     ("The guide said he would come back on Friday.", NO, NO),  # reported speech (blind review, round 16)
+    # blind review, rounds 17 (Fellgate) and 17v
+    ("i don't think i was asking too much.", NO, NO),  # under a negated "think": "*don't think i wasn't"
+    ("I think I was asking too much.", "negation/copula", "I think I wasn't asking too much."),  # control: "think" not negated
+    ("The carpet is coming up at the edge and it's a trip hazard.", NO, NO),  # a fault in progress stays a complaint
+    ("Communication is poor and nobody seems to know who is dealing with what.", NO, NO),  # "nobody ..." stays negative
+    ("Communication is poor.", "negation/copula", "Communication isn't poor."),
+    ("Communication is poor and the staff don't care.", NO, NO),  # a negated clause of a noun subject stays a complaint
+    ("I paid on time.", NO, NO),  # the writer's own punctuality is no opinion
+    ("The parcel arrived on time.", "negation/do-support", "The parcel didn't arrive on time."),
+    ("The team have been amazing throughout.", NO, NO),  # "throughout" takes the negation: a part reading
 ]
 
 

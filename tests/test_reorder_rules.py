@@ -263,6 +263,17 @@ CASES = [
     ("Since the repair the stove has been much better.", ADVL, {"The stove has been much better since the repair."}),  # a comma splice: "the pot wobbles" is a clause, not a noun phrase
     ("The tent has a porch, the porch is dry and the pegs are sturdy.", CLAUSE, set()),  # the second "porch" refers back
     ("I think the tent is roomy, the poles are light and the pegs are sturdy.", CLAUSE, set()),  # "I think" covers one item only
+    # blind review, rounds 17 (Fellgate) and 17v
+    ("Some staff are brilliant and some clearly don't care.", CLAUSE, set()),  # "some" stands for "some staff"
+    ("The staff are brilliant and the rooms are clean.", CLAUSE, {"The rooms are clean and the staff are brilliant."}),
+    ("Each time I get told someone will call.", ADVL, set()),  # what was told is the "main" clause
+    ("Each time I open the app it crashes.", ADVL, set()),  # parsed "the app (that) it crashes"
+    ("Each time, the tent stayed dry.", ADVL, {"The tent stayed dry each time."}),
+    ("the day finally arrived when i was sure i'd leave.", ADVL, set()),  # a relative clause of "the day"
+    ("The tent leaked when it rained.", ADVL, {"When it rained, the tent leaked."}),
+    ("one stopped working in february and the other in march.", ADVL, set()),  # "in march" is the gapped clause's
+    ("it beats the old one in terms of less haze and astonishingly real colors.", COORD, set()),  # "less" scopes over one item
+    ("It has bright and clear colors.", COORD, {"It has clear and bright colors."}),
     # noun phrases with their own adjectives or articles; three items ending in a complement
     ("Friendly guides, calm water and a lovely lunch.", COORD, {"Calm water, a lovely lunch and friendly guides."}),
     ("We loved the friendly guides and the calm water.", COORD, {"We loved the calm water and the friendly guides."}),
