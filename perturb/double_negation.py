@@ -208,6 +208,8 @@ def _candidates(doc: "Doc", ctx: Context) -> Iterator[Candidate]:
         return  # a simile: "clear as day" -> "*not unclear as day" (blind review, round 15)
     if limited_duration(doc):
         return  # "was easy and we enjoyed it for just over a week": the praise is not the point
+    if any(g.norm(t.text) == "throughout" for t in tokens(doc)):
+        return  # "*haven't been bad throughout": bad at some point? (blind review, round 17; negation keeps it)
     if elliptical_echo(an) is not None:
         return  # "are excellent -- as is the quality" -> "*aren't bad -- as is" (blind review, round 16v)
     if not an.clauses:

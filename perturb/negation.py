@@ -119,7 +119,7 @@ PPI = {"some", "something", "someone", "somebody", "somewhere", "already", "some
 # Quantifiers and frequency words: a negation would bind them ("doesn't always work" is not
 # the opposite of "always works"); skip.
 SCOPE_WORDS = {"always", "usually", "often", "sometimes", "all", "every", "everything", "everyone",
-               "everybody", "many", "most", "each", "throughout"}  # "throughout": round 17
+               "everybody", "many", "most", "each"}
 # After "not" these read as a different construction ("not exactly great"): no removal.
 _NOT_FOLLOWERS = {"only", "just", "even", "exactly", "necessarily", "quite", "that", "much", "all",
                   "entirely", "really", "sure"}

@@ -435,7 +435,7 @@ CASES = [
     ("Communication is poor and the staff don't care.", NO, NO),  # a negated clause of a noun subject stays a complaint
     ("I paid on time.", NO, NO),  # the writer's own punctuality is no opinion
     ("The parcel arrived on time.", "negation/do-support", "The parcel didn't arrive on time."),
-    ("The team have been amazing throughout.", NO, NO),  # "throughout" takes the negation: a part reading
+    ("The team have been amazing throughout.", "negation/modal", "The team haven't been amazing throughout."),  # judged right (round 17)
 ]
 
 
