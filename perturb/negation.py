@@ -698,7 +698,10 @@ def fragment(sent, lexicon: "Lexicon") -> Fragment | str:
     if root.pos_ in ("NOUN", "PROPN") and any("!" in t.text for t in sent):
         return "an exclamation"  # "Stupid rain!": a curse, not a verdict to negate
     words_ = [g.norm(t.text) for t in toks]
+    superlative = (op.tag_ == "JJS" or g.norm(op.text) == "best") and op.dep_ == "amod" and op.head.i == root.i
     for i, n in enumerate(words_):
+        if superlative and n in ("ever", "any", "all") and toks[i].i > root.i:
+            continue  # "Worst Monday ever", "the best support I've had from any shop": the superlative licenses them
         if n in PPI or n in SCOPE_WORDS or n in ("ever", "yet", "anymore", "enough", "either", "any"):
             return f"polarity-sensitive word {n!r}"
         if n == "at" and i + 1 < len(words_) and words_[i + 1] == "all":
@@ -744,6 +747,9 @@ def fragment(sent, lexicon: "Lexicon") -> Fragment | str:
         return f"root is {root.pos_}"
     if g.norm(root.text) in _FORMULA_NOUNS or lemma(root).lower() in _FORMULA_NOUNS:
         return "a greeting or formula"
+    if len(phrase) > 1 and phrase[0].dep_ == "advmod" and phrase[0].head.i == root.i \
+            and g.norm(phrase[0].text) in _SENTENCE_ADVS and g.norm(phrase[0].text) != "just":
+        phrase = phrase[1:]  # "Honestly the best support ..." -> "Honestly not the best support ..." ("*just not a")
     if op.pos_ != "ADJ" or op.head.i != root.i or op.dep_ != "amod":
         return "the opinion word is not an adjective on the noun"
     if g.norm(op.text) in ("happy", "merry"):
@@ -765,7 +771,7 @@ def fragment(sent, lexicon: "Lexicon") -> Fragment | str:
         return f"determiner {first.text!r}"
     if any(t.dep_ == "nummod" or t.pos_ == "NUM" for t in phrase if t.head.i == root.i):
         return "a number"
-    if any(t.dep_ == "relcl" for t in phrase) and not any(t.tag_ == "JJS" for t in phrase):
+    if any(t.dep_ == "relcl" for t in phrase) and not any(t.tag_ == "JJS" or g.norm(t.text) in ("best", "worst") for t in phrase):
         return "relative clause"
     if negs:
         if len(negs) == 1 and g.norm(negs[0].text) == "not" and negs[0].i == first.i:

@@ -296,6 +296,13 @@ CASES = [
     ("Poor quality.", "negation/fragment", None),  # "not poor quality" is a hedge, not praise
     ("Great value for the price.", "negation/fragment", "Not great value for the price."),
     ("Best tent out there.", "negation/fragment", "Not the best tent out there."),  # flip is 'reversed or gone' (judge brief v2)
+    ("Best meal we had all month.", "negation/fragment", "Not the best meal we had all month."),  # the superlative licenses "all", "ever", "any"
+    ("Honestly the best support I've had from any shop.", "negation/fragment", "Honestly not the best support I've had from any shop."),
+    ("Best thing I bought this year.", "negation/fragment", "Not the best thing I bought this year."),
+    ("Overall a great tent.", "negation/fragment", "Overall not a great tent."),  # a sentence adverb stays in front
+    ("Just a great tent.", NO, NO),  # "*Just not a great tent"
+    ("Worst tent I have ever owned.", NO, NO),  # a negative superlative: "not the worst" still complains
+    ("A great tent, any time of year.", NO, NO),  # "any" outside a superlative
     ("A great buy.", "negation/fragment", "Not a great buy."),
     ("Flimsy poles.", "negation/fragment", None),
     ("Very comfortable.", "negation/fragment", "Not very comfortable."),
