@@ -371,6 +371,18 @@ def doc_text(doc: "Doc") -> str:
     return text
 
 
+_CONTRAST_MARKS = frozenset("but although though however yet whereas while whilst except".split())
+
+
+def final_though(tok: Any) -> bool:
+    """A "though" that ends its one-clause sentence as an adverb ("A little pricey though.",
+    "The cafe closes too early, though."): it sets the sentence against an earlier one and leaves
+    the sentence itself with one opinion. Not after a comma splice or with another contrast word."""
+    rest = [t for t in tok.sent if t.i > tok.i]
+    return tok.dep_ == "advmod" and all(t.is_punct for t in rest) and not any(
+        t.lower_ in _CONTRAST_MARKS or t.is_punct and t.i < tok.i - 1 for t in tok.sent if t.i != tok.i)
+
+
 _SHORT_TIME = frozenset("minute minutes hour hours day days week weeks fortnight month months year years".split())
 
 

@@ -68,7 +68,7 @@ from __future__ import annotations
 
 from typing import TYPE_CHECKING, Iterator
 
-from pairflip.perturb.base import (NEGATORS, Candidate, Context, TokenEdit, is_question, lemma, limited_duration, linking_use, phrase_at,
+from pairflip.perturb.base import (NEGATORS, Candidate, Context, TokenEdit, final_though, is_question, lemma, limited_duration, linking_use, phrase_at,
                                    sent_of, sents, tokens)
 from pairflip.perturb.lexicon import OpinionWord
 
@@ -176,7 +176,8 @@ _MINIMISED_NOUNS = frozenset("thing things problem complaint complaints issue do
 def candidates(doc: "Doc", ctx: Context) -> Iterator[Candidate]:
     """Every intensifier edit the parse supports, in text order."""
     lex = ctx.lexicon
-    if any(t.lower_ in CONTRAST and t.pos_ != "NOUN" for t in tokens(doc)):  # "after a while" is no contrast
+    if any(t.lower_ in CONTRAST and t.pos_ != "NOUN" and not (t.lower_ == "though" and final_though(t))
+           for t in tokens(doc)):  # "after a while" is no contrast; "A bit pricey though." sets itself against an earlier sentence
         return
     toks = tokens(doc)
     if any(t.lower_ == "then" and t.i > 0 and toks[t.i - 1].text == "," for t in toks):

@@ -71,7 +71,7 @@ from typing import TYPE_CHECKING, Iterator
 
 from pairflip.perturb import grammar as g
 from pairflip.perturb.intensifier import _adverb_grade
-from pairflip.perturb.base import (NEGATORS, Candidate, Context, TokenEdit, doc_text, lemma, linking_use, match_case, phrase_at,
+from pairflip.perturb.base import (NEGATORS, Candidate, Context, TokenEdit, doc_text, final_though, lemma, linking_use, match_case, phrase_at,
                                    sent_of, sents, tokens)
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -1422,6 +1422,8 @@ def _text_guard(doc: "Doc", lexicon: "Lexicon") -> str | None:
         if low == "yet" and t.dep_ == "advmod" and t.i > 0 and t.head.pos_ in ("VERB", "AUX") and any(
                 c.dep_ == "neg" for c in t.head.children) and t.i > t.head.i:
             continue  # "hasn't arrived yet": the aspect adverb under a negation, not a contrast
+        if low == "though" and final_though(t):
+            continue  # "The coffee is good though.": a contrast with what came before, not inside the sentence
         if low in CONTRAST_WORDS and t.pos_ != "NOUN":
             return f"contrast {x!r}"
         if low == "while" and t.dep_ == "mark":

@@ -51,6 +51,7 @@ CASES = [
     ("It's fine as it is.", "double-negation/antonym", "It's not bad as it is."),  # "as it is" echoes nothing
     ("Really, really good.", "double-negation/antonym", None),  # the repeated amplifier left "*, Not bad." (round 17)
     ("Really good.", "double-negation/antonym", "Not bad."),
+    ("The coffee is good though.", "double-negation/antonym", "The coffee isn't bad though."),  # a final "though"
     ("The team have been amazing throughout.", "double-negation/antonym", None),  # "*haven't been bad throughout" (round 17)
     ("Set up was easy and we enjoyed it for just over a week.", "double-negation/antonym", None),  # implied failure (round 17v)
     ("The floor was dirty.", "double-negation/antonym", "The floor wasn't clean."),

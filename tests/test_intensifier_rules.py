@@ -179,6 +179,8 @@ CASES = [
     ("Set up was easy and we enjoyed it for just over a week.", AMP, set()),  # the short span implies a failure
     ("The tent was great and lasted only a month.", AMP, set()),
     ("It was easy, only took ten minutes.", AMP, {"It was very easy, only took ten minutes."}),  # quick is praise
+    ("A little pricey though.", AMP, {"Very pricey though."}),  # a final "though" points to an earlier sentence
+    ("The tent is roomy, though the poles are flimsy.", AMP, set()),  # "though" inside: a contrast
     ("Happy birthday to the crew!", AMP, set()),
     ("The cabin was nice and relaxed.", SOFT, set()),  # "nice and X"
     ("We saw Grateful Dead live.", SOFT, set()),  # a name

@@ -301,6 +301,11 @@ CASES = [
     ("Best thing I bought this year.", "negation/fragment", "Not the best thing I bought this year."),
     ("Overall a great tent.", "negation/fragment", "Overall not a great tent."),  # a sentence adverb stays in front
     ("Just a great tent.", NO, NO),  # "*Just not a great tent"
+    # a final "though" sets the sentence against an earlier one: its own opinion is single
+    ("The coffee is good though.", "negation/copula", "The coffee isn't good though."),
+    ("The cafe closes too early, though.", "negation/do-support", "The cafe doesn't close too early, though."),
+    ("The app won't load, the website is fine though.", NO, NO),  # a comma splice: two opinions
+    ("Though it leaks.", NO, NO),
     ("Worst tent I have ever owned.", NO, NO),  # a negative superlative: "not the worst" still complains
     ("A great tent, any time of year.", NO, NO),  # "any" outside a superlative
     ("A great buy.", "negation/fragment", "Not a great buy."),
