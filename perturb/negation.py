@@ -693,7 +693,8 @@ def fragment(sent, lexicon: "Lexicon") -> Fragment | str:
     if len(ops) != 1:
         return "more than one opinion word"  # "Bad, bad bus", "excellent phone, excellent service"
     op = ops[0]
-    if any(t.pos_ in ("NUM", "SYM", "X") or t.text in ("=", "&", "+", "/", "-", "--", ":", ";") for t in toks):
+    if any((t.pos_ in ("NUM", "SYM", "X") or t.text in ("=", "&", "+", "/", "-", "--", ":", ";"))
+           and not _intra_word_hyphen(t) and not _number_in_a_phrase(t, root) for t in toks):
         return "numbers or symbols"
     if root.pos_ in ("NOUN", "PROPN") and any("!" in t.text for t in sent):
         return "an exclamation"  # "Stupid rain!": a curse, not a verdict to negate
@@ -781,6 +782,24 @@ def fragment(sent, lexicon: "Lexicon") -> Fragment | str:
     if words.startswith("!"):
         return words[1:]
     return Fragment(root, [_not_before(first, words)], 1, 0)
+
+
+def _intra_word_hyphen(t: "Token") -> bool:
+    """A hyphen inside a word ("Wi-Fi", "co-working"), not a dash between phrases."""
+    return t.text == "-" and not t.whitespace_ and t.i > 0 and not t.doc[t.i - 1].whitespace_ and t.i + 1 < len(t.doc)
+
+
+def _number_in_a_phrase(t: "Token", root: "Token") -> bool:
+    """A number inside a prepositional phrase after the head ("Great for two people", "value for a
+    family of four"): part of the frame, not a score or a count of faults ("A solid 4.")."""
+    if t.pos_ != "NUM" or t.i < root.i:
+        return False
+    node = t
+    while node.head.i != node.i and node.i != root.i:
+        if node.dep_ == "pobj" and node.head.dep_ == "prep":
+            return True
+        node = node.head
+    return False
 
 
 def _not_words(first: "Token", noun: "Token", before: list["Token"], polarity: int) -> str:

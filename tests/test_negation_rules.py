@@ -306,6 +306,13 @@ CASES = [
     ("The cafe closes too early, though.", "negation/do-support", "The cafe doesn't close too early, though."),
     ("The app won't load, the website is fine though.", NO, NO),  # a comma splice: two opinions
     ("Though it leaks.", NO, NO),
+    # numbers and hyphens in fragments: a frame or a word, not a score or a count of faults
+    ("Great for two people.", "negation/fragment", "Not great for two people."),
+    ("Amazing value for a family of four.", "negation/fragment", "Not amazing value for a family of four."),
+    ("The perfect co-working space.", "negation/fragment", "Not the perfect co-working space."),
+    ("A solid 4.", NO, NO),  # a score
+    ("Three boxes, three problems.", NO, NO),
+    ("Great tent -- light and warm.", NO, NO),  # a dash between phrases
     ("Worst tent I have ever owned.", NO, NO),  # a negative superlative: "not the worst" still complains
     ("A great tent, any time of year.", NO, NO),  # "any" outside a superlative
     ("A great buy.", "negation/fragment", "Not a great buy."),
