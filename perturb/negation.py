@@ -119,7 +119,7 @@ PPI = {"some", "something", "someone", "somebody", "somewhere", "already", "some
 # Quantifiers and frequency words: a negation would bind them ("doesn't always work" is not
 # the opposite of "always works"); skip.
 SCOPE_WORDS = {"always", "usually", "often", "sometimes", "all", "every", "everything", "everyone",
-               "everybody", "many", "most", "each"}
+               "everybody", "many", "most", "each", "half"}
 # After "not" these read as a different construction ("not exactly great"): no removal.
 _NOT_FOLLOWERS = {"only", "just", "even", "exactly", "necessarily", "quite", "that", "much", "all",
                   "entirely", "really", "sure"}
@@ -1502,7 +1502,7 @@ def _emphasised(tok: "Token", lexicon: "Lexicon", inserting: bool = True) -> str
     if (tok.tag_ in ("JJS", "RBS") or g.norm(tok.text) in ("best", "worst")) and (
             not inserting or entry is None or entry.polarity < 0):
         return f"superlative {tok.text!r}"
-    if inserting and not _could_be(tok) and tok.tag_ in ("JJR", "RBR") or inserting and any(g.norm(c.text) in ("more", "less") and c.dep_ == "advmod" for c in tok.children):
+    if inserting and not _could_be(tok) and not _plain_comparative(tok) and tok.tag_ in ("JJR", "RBR") or inserting and any(g.norm(c.text) in ("more", "less") and c.dep_ == "advmod" for c in tok.children):
         return f"comparative {tok.text!r}"  # "not more than pleased", "isn't prettier than the last"
     if not inserting and entry is not None and tok.pos_ == "ADV" and _adverb_grade(g.norm(tok.text), entry.grade, lexicon) == "extreme":
         return f"extreme adverb {tok.text!r}"  # removal from "hasn't worked flawlessly": the source is a hedge
@@ -1671,6 +1671,19 @@ def _form_fits(base: str, tag: str, text: str) -> bool:
 
     forms = getInflection(base, tag=tag)
     return not forms or text in forms
+
+
+def _plain_comparative(tok: "Token") -> bool:
+    """"is much better now", "is slower than I expected": a comparative complement of "be" with
+    nothing but "much"/"far"/"a lot" on it; negated, the claimed change is gone, which is what
+    `flip` asks. Not "even better" (the negation would take "even"), nor a measure ("thirty pounds
+    cheaper")."""
+    h = tok.head
+    if tok.tag_ != "JJR" or tok.dep_ != "acomp" or lemma(h).lower() != "be":
+        return False
+    mods = [c for c in tok.children if c.i < tok.i]
+    return all(c.dep_ in ("advmod", "npadvmod") and g.norm(c.text) in ("much", "far", "lot", "a") for c in mods) and not any(
+        c.like_num and g.norm(c.text) != "one" for c in tok.subtree)  # "than the old one" is no measure
 
 
 def _could_be(tok: "Token") -> bool:

@@ -313,6 +313,14 @@ CASES = [
     ("A solid 4.", NO, NO),  # a score
     ("Three boxes, three problems.", NO, NO),
     ("Great tent -- light and warm.", NO, NO),  # a dash between phrases
+    # comparatives after "be": negated, the claimed change is gone
+    ("The meat is much better now.", "negation/copula", "The meat isn't much better now."),
+    ("The new app is much better than the old one.", "negation/copula", "The new app isn't much better than the old one."),
+    ("Packaging is better than it was.", "negation/copula", "Packaging isn't better than it was."),
+    ("The speed was even better than before.", NO, NO),  # "even" would fall under the negation
+    ("The same helmet is thirty pounds cheaper elsewhere.", NO, NO),  # a measure
+    ("I expected better.", NO, NO),  # a disappointment, not a comparison made
+    ("Half the pegs were bent.", NO, NO),  # "half ... weren't bent": the other half still were
     ("Worst tent I have ever owned.", NO, NO),  # a negative superlative: "not the worst" still complains
     ("A great tent, any time of year.", NO, NO),  # "any" outside a superlative
     ("A great buy.", "negation/fragment", "Not a great buy."),
