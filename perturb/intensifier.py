@@ -18,6 +18,9 @@ Rules and their operations (``meta["op"]``):
     softener ("very noisy" -> "a bit noisy"). Extreme words are never softened.
 ``intensifier/remove`` (weaken)
     an amplifier is deleted ("very comfortable" -> "comfortable").
+
+The first two also grade an excess: "too small" -> "far too small" (amplify); "way/much/far too
+small" -> "too small" (remove), when no favourable word stands elsewhere in the text.
 ``intensifier/negated-amplify`` (weaken)
     *very* before a favourable predicative adjective under a negated linking verb ("isn't
     helpful" -> "isn't very helpful": the understatement is the milder complaint).
@@ -186,6 +189,7 @@ def candidates(doc: "Doc", ctx: Context) -> Iterator[Candidate]:
         return  # "set up was easy and we enjoyed it for just over a week": the praise is not the point (round 17v)
     if any(t.lower_ == "only" and t.head.lower_ in _MINIMISED_NOUNS for t in toks):
         return  # "The only thing I'd change is the bright lights": the one complaint of a positive text (round 16)
+    yield from _excess(doc, lex)
     degree = _degree_phrases(lex)
     targets = [(tok, hit) for tok in tokens(doc) for hit in [_target(tok, lex)] if hit is not None]
     if not targets:
@@ -567,6 +571,46 @@ def _under_negation(doc: "Doc", tok: "Token", entry: "OpinionWord", role: str) -
     if any(t.i != head.i for t in doc[neg.i + 1 : mods[0].i]):
         return
     yield _candidate(doc, tok, mods[0].i, [], "intensifier/negated-remove", dict(base_meta, op="remove", removed=mods[0].lower_))
+
+
+# "too" + adjective states an excess, a complaint whatever the adjective ("too sweet", "too
+# small"); "far", "way" and "much" grade the excess itself ("far too small"; a handbook fact of
+# English degree words, Quirk et al. 1985 on intensifying "too", from memory). The rules insert
+# "far" (strengthen) or drop "far"/"way"/"much" (weaken), with the same names as the other edits.
+EXCESS_AMPLIFIER = "far"
+EXCESS_DEGREE = frozenset({"far", "way", "much"})
+# "too kind" and "too good to be true" are politeness and idiom, "too bad" a formula, "only too
+# happy" willingness: no excess to grade.
+_NOT_EXCESS = frozenset({"good", "kind", "bad", "nice", "generous", "happy", "pleased", "glad", "eager", "willing", "sure"})
+
+
+def _excess(doc: "Doc", lex: "Lexicon") -> Iterator[Candidate]:
+    """Grade a plain excess: "too small" -> "far too small" (amplify), "way too small" -> "too small"
+    (remove). Only when every other opinion word of the text is unfavourable as written (the excess
+    is a complaint), outside questions, negations, wishes and orders."""
+    toks = tokens(doc)
+    for too in toks:
+        if too.lower_ != "too" or too.dep_ != "advmod":
+            continue
+        head = too.head
+        if head.i != too.i + 1 or not (head.pos_ in ("ADJ", "ADV") and head.tag_ in ("JJ", "RB") or head.lower_ in ("much", "many")):
+            continue
+        if head.lower_ in _NOT_EXCESS or any(c.lower_ in ("than", "enough") for c in head.children):
+            continue
+        sent = sent_of(too)
+        if is_question(sent) or _negated(head) or _irrealis(head, "predicative") or _imperative(head):
+            continue
+        others = {_effective_polarity(t, h) for t, h in _opinion_tokens(doc, lex) if t.i != head.i}
+        if others - {-1}:
+            continue  # a favourable word elsewhere: the text's direction is unclear
+        prev = toks[too.i - 1] if too.i > sent.start else None
+        meta = {"target": f"too {head.text}", "polarity": -1, "grade": "gradable", "role": "excess"}
+        if prev is not None and prev.lower_ in EXCESS_DEGREE:
+            if prev.head.i in (too.i, head.i):
+                yield _candidate(doc, too, prev.i, [], "intensifier/remove", dict(meta, op="remove", removed=prev.lower_))
+            continue  # "Way too expensive" parsed with "Way" elsewhere: never "*Way far too"
+        elif prev is None or not (prev.pos_ == "ADV" or prev.dep_ in ("advmod", "npadvmod") or prev.lower_ in ("a", "bit", "little", "not")):
+            yield _candidate(doc, too, too.i, [EXCESS_AMPLIFIER], "intensifier/amplify", dict(meta, op="insert", word=EXCESS_AMPLIFIER))
 
 
 # Verbs of advice to a buyer; with no subject they give an order even where the tagger reads a

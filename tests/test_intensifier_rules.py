@@ -134,7 +134,7 @@ CASES = [
     # comparatives, superlatives, other degree words, exclamatives
     ("This jacket is lighter than my old one.", AMP, set()),
     ("The best stove I have owned.", AMP, set()),
-    ("The jacket is too warm for summer.", AMP, set()),
+    ("The jacket is too warm for summer.", AMP, {"The jacket is far too warm for summer."}),  # the excess is graded, never "warm" alone
     ("The jacket is warm enough.", AMP, set()),
     ("The jacket is as warm as my old one.", AMP, set()),
     ("The jacket is very, very warm.", REM, set()),
@@ -181,6 +181,17 @@ CASES = [
     ("It was easy, only took ten minutes.", AMP, {"It was very easy, only took ten minutes."}),  # quick is praise
     ("A little pricey though.", AMP, {"Very pricey though."}),  # a final "though" points to an earlier sentence
     ("The tent is roomy, though the poles are flimsy.", AMP, set()),  # "though" inside: a contrast
+    # an excess: "too" + adjective is a complaint; "far" grades it
+    ("The sauce was too sweet for my taste.", AMP, {"The sauce was far too sweet for my taste."}),
+    ("Too many bruised ones.", AMP, {"Far too many bruised ones."}),
+    ("Portions are way too small for the price.", REM, {"Portions are too small for the price."}),
+    ("The rules are much too strict.", REM, {"The rules are too strict."}),
+    ("The rules are much too strict.", AMP, set()),
+    ("It was a bit too loud.", AMP, set()),  # already graded down
+    ("You're too kind.", AMP, set()),  # politeness, no excess
+    ("Is it too big?", AMP, set()),
+    ("The staff are lovely and the room is too small.", AMP, set()),  # praise elsewhere: direction unclear
+    ("The tent is not too heavy.", AMP, set()),  # negated
     ("Happy birthday to the crew!", AMP, set()),
     ("The cabin was nice and relaxed.", SOFT, set()),  # "nice and X"
     ("We saw Grateful Dead live.", SOFT, set()),  # a name
