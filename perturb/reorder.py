@@ -284,9 +284,16 @@ def _is_question(sent: "Span") -> bool:
 # --- coordination ----------------------------------------------------------------------------
 
 
+# Manner adverbs that make a past participle an adjective of quality ("well located", "badly made").
+_QUALITY_ADVERBS = frozenset("well badly poorly nicely beautifully properly".split())
+
+
 def _kind(tok: "Token", lex) -> str | None:
     if tok.pos_ == "ADJ" or _is_adjective(tok, lex):
         return "adj"
+    if tok.tag_ == "VBN" and [c.lower_ for c in tok.children if c.dep_ not in ("cc", "conj", "punct")] in (
+            [w] for w in _QUALITY_ADVERBS) and tok.i > 0 and tok.doc[tok.i - 1].lower_ in _QUALITY_ADVERBS:
+        return "adj"  # "quiet, tidy and well managed": a participle of quality in a list of adjectives
     if tok.pos_ == "ADV":
         return "adv"
     if tok.pos_ in ("NOUN", "PROPN"):

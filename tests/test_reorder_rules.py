@@ -274,6 +274,10 @@ CASES = [
     ("one stopped working in february and the other in march.", ADVL, set()),  # "in march" is the gapped clause's
     ("it beats the old one in terms of less haze and astonishingly real colors.", COORD, set()),  # "less" scopes over one item
     ("It has bright and clear colors.", COORD, {"It has clear and bright colors."}),
+    # a participle of quality ("well managed") in a list of adjectives
+    ("Quiet, tidy and well managed.", COORD, {"Tidy, well managed and quiet."}),
+    ("The shop is clean, friendly and well organised.", COORD, {"The shop is friendly, well organised and clean."}),
+    ("The tent was delivered and pitched.", COORD, set()),  # events, not qualities
     # noun phrases with their own adjectives or articles; three items ending in a complement
     ("Friendly guides, calm water and a lovely lunch.", COORD, {"Calm water, a lovely lunch and friendly guides."}),
     ("We loved the friendly guides and the calm water.", COORD, {"We loved the calm water and the friendly guides."}),
