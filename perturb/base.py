@@ -387,7 +387,8 @@ _SHORT_TIME = frozenset("minute minutes hour hours day days week weeks fortnight
 
 
 def limited_duration(doc: Any) -> bool:
-    """A time span played down ("enjoyed it for just over a week", "lasted only a month"): the text
+    """A time span played down ("enjoyed it for just over a week", "lasted only a month", "worked for
+    a while"): the text
     implies the product then failed, so its praise is not its opinion (blind review, round 17v)."""
     toks = list(doc)
     for t in toks:
@@ -395,6 +396,9 @@ def limited_duration(doc: Any) -> bool:
             near = {u.lower_ for u in toks[max(0, t.i - 2) : t.i + 2]}
             if near & {"for", "last", "lasted", "lasts", "lasting", "survived", "worked"}:
                 return True  # not "only took ten minutes": quick, which is praise
+        if t.lower_ == "while" and t.i >= 2 and toks[t.i - 1].lower_ == "a" and toks[t.i - 2].lower_ == "for" \
+                and toks[t.i - 2].head.tag_ == "VBD" and lemma(toks[t.i - 2].head).lower() in ("work", "last", "run", "hold"):
+            return True  # "it worked good for a while": then it stopped (blind review, round 18v)
     return False
 
 

@@ -71,7 +71,7 @@ from typing import TYPE_CHECKING, Iterator
 
 from pairflip.perturb import grammar as g
 from pairflip.perturb.intensifier import _adverb_grade
-from pairflip.perturb.base import (NEGATORS, Candidate, Context, TokenEdit, doc_text, final_though, lemma, linking_use, match_case, phrase_at,
+from pairflip.perturb.base import (NEGATORS, Candidate, Context, TokenEdit, doc_text, final_though, lemma, limited_duration, linking_use, match_case, phrase_at,
                                    sent_of, sents, tokens)
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -541,6 +541,9 @@ def _analyse(doc: "Doc", lexicon: "Lexicon") -> Analysis:
             unsure = unsure or "conditional"
         if g.norm(t.text) == "not" and t.i + 1 < len(doc) and g.norm(tokens(doc)[t.i + 1].text) == "only":
             unsure = unsure or "not only"
+        if g.norm(t.text) == "long" and 0 < t.i < len(doc) - 1 and g.norm(tokens(doc)[t.i - 1].text) in ("as", "so") \
+                and g.norm(tokens(doc)[t.i + 1].text) == "as":
+            unsure = unsure or "conditional"  # "doesn't care as long as the rent comes in" (blind review, round 18)
     for sent in sents(doc):
         is_question = any("?" in t.text for t in sent)
         covered: set[int] = set()
@@ -1129,6 +1132,8 @@ def removal(cl: Clause) -> list[TokenEdit] | str:
     if lemma(head).lower() == "help" and any(g.aux_word(a) in ("can", "could") for a in cl.auxes) and any(
             c.dep_ in ("xcomp", "ccomp", "cc", "prep") or c.tag_ == "VBG" for c in head.children):
         return "idiom 'can't help'"  # "couldn't help noticing": "could help noticing" is no English
+    if lemma(head).lower() in ("understand", "believe", "imagine", "see", "figure") and any(c.dep_ == "ccomp" for c in head.children):
+        return "a frame of disbelief"  # "i can't understand why it would introduce static": the fault stays (round 18v)
     if subj is None and not dropped_subject(cl):
         return "no subject (imperative or fragment)"
     nobody = nobody_subject(cl)
@@ -1232,6 +1237,22 @@ def _comma_which(cl: Clause) -> bool:
 def _past_report(cl: Clause) -> bool:
     """A clause in a past tense: a past verb, or a past auxiliary ("had melted", "was missing")."""
     return cl.head.tag_ == "VBD" or any(a.tag_ == "VBD" for a in cl.auxes)
+
+
+_REPEAT_UNITS = frozenset("minute minutes hour hours day days night nights morning mornings week weeks time".split())
+
+
+def _obligation(cl: Clause) -> bool:
+    """"I have to top it up", "we had to call twice": a burden, a complaint the lexicon cannot see."""
+    return lemma(cl.head).lower() == "have" and any(
+        c.dep_ == "xcomp" and any(a.dep_ == "aux" and g.norm(a.text) == "to" for a in c.children) for c in cl.head.children)
+
+
+def _repeated(cl: Clause) -> bool:
+    """"logs you out every five minutes", "every day": a repeated event, most often a fault."""
+    if cl.subj is not None and g.norm(cl.subj.text) in _PERSONS:
+        return False  # "I cycle in every day": the writer's habit
+    return any(g.norm(t.text) in ("every", "each") and t.head.lower_ in _REPEAT_UNITS for t in cl.own)
 
 
 def _progressive(cl: Clause) -> bool:
@@ -1404,6 +1425,8 @@ def _text_guard(doc: "Doc", lexicon: "Lexicon") -> str | None:
     text = doc_text(doc)
     if ";" in text:
         return "clauses joined by a semicolon"
+    if limited_duration(doc):
+        return "a time span played down"  # "it worked good for a while": a complaint either way (blind review, round 18v)
     if _EMOTICON_IN_TEXT.search(text):
         return "emoticon"
     if _ENUMERATION.search(text):
@@ -1681,6 +1704,11 @@ def _plain_comparative(tok: "Token") -> bool:
     h = tok.head
     if tok.tag_ != "JJR" or tok.dep_ != "acomp" or lemma(h).lower() != "be":
         return False
+    if any(g.norm(c.text) == "off" for c in tok.children) or tok.i + 1 < len(tok.doc) and g.norm(tok.doc[tok.i + 1].text) == "off":
+        return False  # "you are better off deleting it": advice (blind review, round 18v)
+    sent = tok.sent
+    if any(t.pos_ in ("NUM", "SYM") and g.norm(t.text) != "one" or t.tag_ in ("JJR", "RBR") and t.i != tok.i for t in sent):
+        return False  # "a $ 39 disappointment is better than ...", "... are also better": a price or a second comparison (round 18v)
     mods = [c for c in tok.children if c.i < tok.i]
     return all(c.dep_ in ("advmod", "npadvmod") and g.norm(c.text) in ("much", "far", "lot", "a") for c in mods) and not any(
         c.like_num and g.norm(c.text) != "one" for c in tok.subtree)  # "than the old one" is no measure
@@ -1789,6 +1817,11 @@ def clause_doubt(cl: Clause, lexicon: "Lexicon", coordination: bool = False) -> 
     if cl.head.dep_ == "ccomp" and lemma(cl.head.head).lower() in _REPORT_VERBS and (
             cl.event or any(g.aux_word(a) in ("will", "would") for a in cl.auxes)):
         return "a reported promise"  # "The engineer said he would come back": a report, no opinion of the writer's (round 16)
+    if lemma(cl.head).lower() == "have" and cl.subj is not None and g.norm(cl.subj.text) in ("i", "we"):
+        for obj in (c for c in cl.head.children if c.dep_ == "dobj"):
+            adjs = [c for c in obj.children if c.dep_ == "amod" and c.pos_ == "ADJ"]
+            if any(opinion_of(a, lexicon) is None for a in adjs) and any(opinion_of(a, lexicon) is not None for a in adjs):
+                return "a description of what the writer has"  # "I have a small, very quiet cat" (blind review, round 18)
     if cl.head.dep_ == "ccomp" and any(c.dep_ == "neg" for c in cl.head.head.children):
         return "a complement of a negated verb"  # "i don't think i was asking too much" -> "*don't think i wasn't" (round 17v)
     for t in cl.own:
@@ -1945,6 +1978,10 @@ def plan(doc: "Doc", ctx: Context) -> "Candidate | str":
         if (o.other_negs or o.negs and o.subj is not None and (o.subj.pos_ in ("NOUN", "PROPN") or g.norm(o.subj.text) == "they")) \
                 and not _embedded(o) and o.head.dep_ in ("ROOT", "conj"):  # not "I don't camp often", "it does not rain"
             return "a negated clause left as it is"  # "and nobody seems to know who is dealing with what" (round 17)
+        if lemma(o.head).lower() == "wish":
+            return "a wish carries the opinion"  # "was perfect and i wish it was on this model" (blind review, round 18v)
+        if not _embedded(o) and (_obligation(o) or _repeated(o)):
+            return "a plain clause may carry an unseen opinion"  # "and I have to top it up every day" (round 18)
         if not _embedded(o) and (_past_report(o) or _progressive(o)) and (o.subj is None or g.norm(o.subj.text) not in _PERSONS) and (
                 o.head.head.i in opinion_heads and o.head.dep_ == "conj" or any(c.dep_ == "conj" and c.i in opinion_heads for c in o.head.children)):
             return "a plain clause may carry an unseen opinion"  # "and the butter had melted", "and glass got into the pasta" (round 11)

@@ -436,6 +436,8 @@ def _coordination(sent: "Span", ctx: Context) -> Iterator[Candidate]:
             continue  # "reliable in the cold and easy to light": "cold" is not coordinated with "easy"
         if kind == "np" and head.dep_ == "compound":
             continue  # "the fish and chip shop"
+        if any(c.lower_ in ("other", "another") for t in conj for c in t.subtree):
+            continue  # "one cd classified as classic rock and the other psychedelic rock": a gapped clause (round 18v)
         ccs = [c for t in conj for c in t.children if c.dep_ == "cc"]
         if len(ccs) != 1 or ccs[0].lower_ not in COORDINATORS.get(kind, DEFAULT_COORDINATORS):
             continue

@@ -321,6 +321,22 @@ CASES = [
     ("The same helmet is thirty pounds cheaper elsewhere.", NO, NO),  # a measure
     ("I expected better.", NO, NO),  # a disappointment, not a comparison made
     ("Half the pegs were bent.", NO, NO),  # "half ... weren't bent": the other half still were
+    # blind review, rounds 18 (Fellgate) and 18v
+    ("The pressure keeps dropping and I have to top it up every day.", NO, NO),  # a burden the lexicon cannot see
+    ("It logs you out every five minutes and the form won't accept photos.", NO, NO),  # a repeated fault
+    ("I cycle in every day and the bike storage is secure.", "negation/copula", "I cycle in every day and the bike storage isn't secure."),  # a habit
+    ("The tent is great and we use it every weekend.", "negation/copula", "The tent isn't great and we use it every weekend."),
+    ("The agency doesn't care as long as the rent comes in.", NO, NO),  # a condition keeps the cynicism
+    ("I have a small, very quiet cat.", NO, NO),  # a description of what the writer has
+    ("I have a great landlord.", "negation/do-support", "I don't have a great landlord."),
+    ("You are better off deleting it.", NO, NO),  # advice
+    ("A $39 letdown is better than a $125 one.", NO, NO),  # a price comparison
+    ("The optics are better and I believe the software is also better.", NO, NO),  # a second comparison
+    ("The old dial was perfect and I wish it was on this model.", NO, NO),  # the wish is the complaint
+    ("It worked good for a while.", NO, NO),  # then it stopped
+    ("It worked well for years.", "negation/do-support", "It didn't work well for years."),
+    ("I can't understand why it leaks.", NO, NO),  # the leak stays
+    ("I can't understand the manual.", "negation/removal", "I can understand the manual."),
     ("Worst tent I have ever owned.", NO, NO),  # a negative superlative: "not the worst" still complains
     ("A great tent, any time of year.", NO, NO),  # "any" outside a superlative
     ("A great buy.", "negation/fragment", "Not a great buy."),

@@ -278,6 +278,7 @@ CASES = [
     ("Quiet, tidy and well managed.", COORD, {"Tidy, well managed and quiet."}),
     ("The shop is clean, friendly and well organised.", COORD, {"The shop is friendly, well organised and clean."}),
     ("The tent was delivered and pitched.", COORD, set()),  # events, not qualities
+    ("It had one tent sold as a two-man and the other three-man.", COORD, set()),  # "the other": a gapped clause (round 18v)
     # noun phrases with their own adjectives or articles; three items ending in a complement
     ("Friendly guides, calm water and a lovely lunch.", COORD, {"Calm water, a lovely lunch and friendly guides."}),
     ("We loved the friendly guides and the calm water.", COORD, {"We loved the calm water and the friendly guides."}),
