@@ -1707,8 +1707,8 @@ def _plain_comparative(tok: "Token") -> bool:
     if any(g.norm(c.text) == "off" for c in tok.children) or tok.i + 1 < len(tok.doc) and g.norm(tok.doc[tok.i + 1].text) == "off":
         return False  # "you are better off deleting it": advice (blind review, round 18v)
     sent = tok.sent
-    if any(t.pos_ in ("NUM", "SYM") and g.norm(t.text) != "one" or t.tag_ in ("JJR", "RBR") and t.i != tok.i for t in sent):
-        return False  # "a $ 39 disappointment is better than ...", "... are also better": a price or a second comparison (round 18v)
+    if any(t.pos_ in ("NUM", "SYM") and g.norm(t.text) != "one" for t in sent):
+        return False  # "a $ 39 disappointment is better than a $ 125 disappointment": a price comparison (round 18v)
     mods = [c for c in tok.children if c.i < tok.i]
     return all(c.dep_ in ("advmod", "npadvmod") and g.norm(c.text) in ("much", "far", "lot", "a") for c in mods) and not any(
         c.like_num and g.norm(c.text) != "one" for c in tok.subtree)  # "than the old one" is no measure

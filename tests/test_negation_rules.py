@@ -331,7 +331,8 @@ CASES = [
     ("I have a great landlord.", "negation/do-support", "I don't have a great landlord."),
     ("You are better off deleting it.", NO, NO),  # advice
     ("A $39 letdown is better than a $125 one.", NO, NO),  # a price comparison
-    ("The optics are better and I believe the software is also better.", NO, NO),  # a second comparison
+    ("The optics are better and I believe the software is also better.", "negation/copula",
+     "The optics aren't better and I believe the software is also better."),  # judged right (round 18v)
     ("The old dial was perfect and I wish it was on this model.", NO, NO),  # the wish is the complaint
     ("It worked good for a while.", NO, NO),  # then it stopped
     ("It worked well for years.", "negation/do-support", "It didn't work well for years."),
