@@ -1822,6 +1822,14 @@ def clause_doubt(cl: Clause, lexicon: "Lexicon", coordination: bool = False) -> 
             adjs = [c for c in obj.children if c.dep_ == "amod" and c.pos_ == "ADJ"]
             if any(opinion_of(a, lexicon) is None for a in adjs) and any(opinion_of(a, lexicon) is not None for a in adjs):
                 return "a description of what the writer has"  # "I have a small, very quiet cat" (blind review, round 18)
+    for c in cl.head.children:
+        after_comma = c.left_edge.i > 0 and c.doc[c.left_edge.i - 1].text == "," and c.i > cl.head.i
+        if after_comma and c.dep_ in ("npadvmod", "appos", "dep") and c.pos_ == "NOUN" and g.norm(c.text) not in (
+                "thanks", "cheers", "please", "mate", "guys", "team") and not any(
+                t.pos_ in ("VERB", "AUX") for t in c.subtree):
+            return "an appended phrase may carry an unseen opinion"  # "snapped off this morning, water everywhere" (round 19)
+        if after_comma and c.dep_ == "advcl" and c.tag_ == "VBG" and not any(t.dep_ == "mark" for t in c.children):
+            return "a consequence clause"  # "it's the wrong title, causing you to rename everything" (round 19v)
     if cl.head.dep_ == "ccomp" and any(c.dep_ == "neg" for c in cl.head.head.children):
         return "a complement of a negated verb"  # "i don't think i was asking too much" -> "*don't think i wasn't" (round 17v)
     for t in cl.own:
@@ -1978,6 +1986,9 @@ def plan(doc: "Doc", ctx: Context) -> "Candidate | str":
         if (o.other_negs or o.negs and o.subj is not None and (o.subj.pos_ in ("NOUN", "PROPN") or g.norm(o.subj.text) == "they")) \
                 and not _embedded(o) and o.head.dep_ in ("ROOT", "conj"):  # not "I don't camp often", "it does not rain"
             return "a negated clause left as it is"  # "and nobody seems to know who is dealing with what" (round 17)
+        if not _embedded(o) and o.head.dep_ in ("ROOT", "conj") and any(
+                c.dep_ == "advmod" and g.norm(c.text) == "just" and c.i < o.head.i for c in o.head.children):
+            return "a plain clause may carry an unseen opinion"  # "and the emails just get an automatic reply" (round 19)
         if lemma(o.head).lower() == "wish":
             return "a wish carries the opinion"  # "was perfect and i wish it was on this model" (blind review, round 18v)
         if not _embedded(o) and (_obligation(o) or _repeated(o)):

@@ -765,6 +765,8 @@ def _clause_adjunct(tok: "Token", root: "Token") -> bool:
         first = sub[0]
         if first.lower_ not in CLAUSE_MARKERS or first.head.i != tok.i or first.dep_ not in ("mark", "advmod"):
             return False
+        if first.lower_ == "after" and len(sub) > 1 and sub[1].lower_ == "all":
+            return False  # "after all those players have ...": "after all" means "since" (round 19v)
         verb = tok
     if not any(c.dep_ in ("nsubj", "nsubjpass", "expl") for c in verb.children):
         return False  # "after waiting an hour": the subject is the main clause's

@@ -340,6 +340,11 @@ CASES = [
     ("I can't understand the manual.", "negation/removal", "I can understand the manual."),
     # another main clause left as it is: judges pass a text the edit leaves mixed (round 16)
     ("Recordings start instantly and the menus don't lag.", "negation/removal", "Recordings start instantly and the menus lag."),
+    # blind review, rounds 19 (Fellgate) and 19v
+    ("The shower head snapped off this morning, water everywhere.", NO, NO),  # the appended phrase keeps the complaint
+    ("It's the wrong title, causing you to rename everything.", NO, NO),  # the consequence keeps the complaint
+    ("Nobody answers the phone and the emails just get an automatic reply.", NO, NO),  # "just": a plain complaint
+    ("Nobody answers the phone.", "negation/removal", "Somebody answers the phone."),
     ("We had the curry tonight and it was gorgeous.", "negation/copula", "We had the curry tonight and it wasn't gorgeous."),
     ("I live alone and the box is too much for me.", "negation/copula", "I live alone and the box isn't too much for me."),
     ("Worst tent I have ever owned.", NO, NO),  # a negative superlative: "not the worst" still complains

@@ -278,6 +278,8 @@ CASES = [
     ("Quiet, tidy and well managed.", COORD, {"Tidy, well managed and quiet."}),
     ("The shop is clean, friendly and well organised.", COORD, {"The shop is friendly, well organised and clean."}),
     ("The tent was delivered and pitched.", COORD, set()),  # events, not qualities
+    ("After all the players have big drives, better sorting is needed.", ADVL, set()),  # "after all" means "since" (round 19v)
+    ("After we pitched it, the tent stayed dry.", ADVL, {"The tent stayed dry after we pitched it."}),
     ("It had one tent sold as a two-man and the other three-man.", COORD, set()),  # "the other": a gapped clause (round 18v)
     # noun phrases with their own adjectives or articles; three items ending in a complement
     ("Friendly guides, calm water and a lovely lunch.", COORD, {"Calm water, a lovely lunch and friendly guides."}),
