@@ -165,7 +165,7 @@ HENDIADYS = frozenset({"nice", "good", "lovely", "fine"})
 # adjective without grading it: "is always polite" -> "is always very polite", "is still clunky",
 # "is also patchy" (they set when or how often the quality holds, not its degree; Quirk et al.
 # 1985, 8.62ff on time and frequency adjuncts, from memory).
-FRAME_ADVERBS = frozenset("always usually still also generally normally often now".split())
+FRAME_ADVERBS = frozenset("always usually still also generally normally often now consistently".split())
 # Conjunctions and marks allowed inside a plain list of adjectives ("early and cheerful",
 # "Loud, dirty and overpriced").
 LIST_LINKS = frozenset({",", "and", "or", "&"})
@@ -374,7 +374,8 @@ def _adjective_role(tok: "Token") -> str | None:
         return "predicative"
     if dep == "ROOT" and (head.pos_ == "ADJ" or head.i == tok.i) and _passive_be(tok) is None:  # a fragment: "Very comfortable."
         sent = sent_of(tok)
-        if any(not (t.is_punct or t.i in _degree_span(head) or t.pos_ == "INTJ") for t in tok.doc[sent.start : head.i]):
+        if any(not (t.is_punct or t.i in _degree_span(head) or t.pos_ == "INTJ" or t.dep_ == "neg" and t.head.i == head.i)
+               for t in tok.doc[sent.start : head.i]):
             return None  # "joaquin phoenix uncomfortable": a comparison with a name, not a plain fragment
         if head.i != tok.i and not _adjective_list(head, tok):
             return None
@@ -547,8 +548,8 @@ def _under_negation(doc: "Doc", tok: "Token", entry: "OpinionWord", role: str) -
     single "not"/"n't"/"never" on the linking verb itself, with nothing but the verb between it and
     the adjective (or its one degree word); unfavourable words are left alone ("isn't very bad" is
     no clear step from "isn't bad", which reads as praise)."""
-    if role != "predicative" or entry.polarity != 1 or entry.grade != "gradable" or tok.dep_ != "acomp":
-        return
+    if role != "predicative" or entry.polarity != 1 or entry.grade != "gradable" or tok.dep_ not in ("acomp", "ROOT"):
+        return  # a complement of a linking verb, or a fragment ("Not helpful.")
     if tok.lower_ in _YES_NO_WORDS:
         return  # "That's not acceptable": a verdict with no degree; "*not very acceptable"
     head = tok.head

@@ -272,6 +272,10 @@ CASES = [
     ("It isn't good enough.", NAMP, set()),
     ("Isn't it good?", NAMP, set()),  # a question
     ("I don't think it's helpful.", NAMP, set()),  # the negator sits on another verb
+    ("Not helpful.", NAMP, {"Not very helpful."}),  # a negated fragment
+    ("Not very helpful.", NREM, {"Not helpful."}),
+    ("Not helpful at all.", NAMP, set()),
+    ("The food has been consistently fresh.", AMP, {"The food has been consistently very fresh."}),  # a frequency frame
 ]
 
 
