@@ -251,6 +251,9 @@ def _adjectives(cl: "Clause", lex, text_style: str | None, alone: bool) -> Itera
         return  # "tough, comfortable and roomy" read as two complements; an opinion elsewhere on the predicate
     if any(c.dep_ == "cc" for c in first.children) and not coordinated:
         return
+    if coordinated and any(c.dep_ == "prep" and g.norm(c.text) == "with" and c.i > chain[-1].i
+                           for t in (head, *chain) for c in t.children):
+        return  # "*isn't unpleasant, dim or cramped with a separate cat area": the feature joins the faults (blind review, round 20)
     opps = [_opposite(a, lex, "ADJ") for a in chain]
     if any(o is None for o in opps):
         return
@@ -406,6 +409,11 @@ def _fragment(doc: "Doc", an, lex) -> Iterator[Candidate]:
                 return
             prefix = prefix.split()[0] + " " + art
         edits.append(TokenEdit(tok.i, tok.i + 1, f"{prefix} {word}"))
+    elif g.norm(tok.text) in ("a", "an") and tok.i + 1 == targets[0].i:
+        art = indefinite_for(opps[0][0])  # "Not a unreasonable vet" (blind review, round 20)
+        if art is None:
+            return
+        edits.append(TokenEdit(tok.i, tok.i + 1, lead.text[: len(lead.text) - len(tok.text)] + art))
     else:
         edits.append(lead)
     kinds = {o[1] for o in opps}

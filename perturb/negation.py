@@ -617,7 +617,8 @@ UNCOUNTABLE = frozenset({"quality", "value", "service", "staff", "equipment", "f
          "equipment", "gear", "storage", "memory", "feedback", "communication", "technology",
          "hardware", "imaging", "bass", "access", "produce", "fruit", "bread", "meat", "parking",
          "internet", "broadband", "bandwidth", "data", "electricity", "power", "heating", "signal",
-         "coverage", "personnel", "veg", "fish", "luggage", "information"})
+         "coverage", "personnel", "veg", "fish", "luggage", "information",
+         "care", "aftercare", "attention", "hospitality"})  # "*Not an outstanding care." (blind review, round 20)
 # Count nouns with a mass-noun ending: they take "a" ("Not a pleasant experience.", round 14).
 _COUNTABLE_SUFFIXED = {"experience", "relationship", "booking", "meeting", "building", "ending",
                        "instance", "entrance", "appliance", "sentence", "conference", "residence",
@@ -1414,6 +1415,9 @@ _ELONGATED = re.compile(r"([a-z])\1\1")
 _SOO = re.compile(r"^s+o{2,}$")
 _SO_DEGREE = frozenset({"much", "many", "far", "well", "little", "few", "badly", "quickly", "easily", "often"})
 _EMOTICON_IN_TEXT = re.compile(r"(?:^|\s)(?:[:;=8][-o'^]?[()DPpOo3\]\[/\\|*@$]|<3|[)(][-o']?[:;=])")
+# Praise of a useless object stands for a broken product (common practice in device reviews):
+# negated, the sarcasm stays.
+_SARCASM = re.compile(r"\b(?:paper ?weights?|door ?stops?|door ?stoppers?)\b", re.I)
 # A negated clause in a long text rarely carries all of its opinion (common practice: the
 # blind review of round 1 found the long texts half flipped).
 MAX_WORDS = 30
@@ -1849,8 +1853,8 @@ def clause_doubt(cl: Clause, lexicon: "Lexicon", coordination: bool = False) -> 
             return f"hedge {x.text!r}"  # "didn't work almost perfectly"; "doesn't constantly crash" still complains
     if any(g.aux_word(a) == "would" for a in cl.auxes) and g.base_form(cl.head) == "be" and cl.subj is not None and (
             any(c.dep_ == "det" and g.norm(c.text) in ("a", "an", "some", "more") for c in cl.subj.children)
-            or cl.subj.tag_ == "NNS" and not any(c.dep_ in ("det", "poss") for c in cl.subj.children)):
-        return "a suggestion ('a ... would be nice')"  # "A waiting area would be nice": a wish (blind review, round 13)
+            or cl.subj.tag_ in ("NNS", "NN") and not any(c.dep_ in ("det", "poss") for c in cl.subj.children)):
+        return "a suggestion ('a ... would be nice')"  # "A waiting area would be nice", "Free parking would be nice" (rounds 13, 20)
     for c in cl.head.children:
         if c.dep_ == "advcl" and lemma(c).lower() in ("work", "function", "behave") and any(
                 m.dep_ in ("mark", "advmod") and g.norm(m.text) in ("when", "if", "whenever") for m in c.children):
@@ -1888,6 +1892,8 @@ def plan(doc: "Doc", ctx: Context) -> "Candidate | str":
     if why is not None:
         return why
     low = doc_text(doc).lower()
+    if _SARCASM.search(low):  # "not a nice paperweight" still mocks (round 20v); double negation keeps it (19v)
+        return "sarcasm ('nice paperweight')"
     if "to say the least" in low:
         return "emphatic frame 'to say the least'"  # "*weren't devastated to say the least" (round 11)
     if any(g.norm(t.text) in ("hope", "hoping", "hoped", "hopes", "hopefully") for t in tokens(doc)):

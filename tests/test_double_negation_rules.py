@@ -212,6 +212,13 @@ CASES = [
     ("The lid looks clean also.", NO, NO),  # additive "also"
     ("Stay safe!", NO, NO),  # imperative
     ("@sam Stay safe!", NO, NO),  # imperative with a mention the parser takes for its subject
+    # blind review, round 20 (Wrenhollow)
+    ("A reasonable vet for the price.", "double-negation/prefix", "Not an unreasonable vet for the price."),  # the article follows the new word
+    ("The new north branch is really nice, bright and spacious with a separate cat area.", NO, NO),  # the feature would join the faults
+    ("The room is clean and quiet.", "double-negation/antonym", "The room isn't dirty or noisy."),  # control: no with-phrase
+    ("Free parking would be nice.", NO, NO),  # a suggestion, no opinion held
+    ("Outstanding care.", NO, NO),  # "*Not a bad care": a mass noun takes no article
+    ("nice paperweight.", "double-negation/antonym", "not an unpleasant paperweight."),  # judged right (round 19v); negation skips the sarcasm
 ]
 
 

@@ -489,6 +489,11 @@ CASES = [
     ("I paid on time.", NO, NO),  # the writer's own punctuality is no opinion
     ("The parcel arrived on time.", "negation/do-support", "The parcel didn't arrive on time."),
     ("The team have been amazing throughout.", "negation/modal", "The team haven't been amazing throughout."),  # judged right (round 17)
+    # blind review, rounds 20 (Wrenhollow) and 20v
+    ("Outstanding care.", "negation/fragment", "Not outstanding care."),  # a mass noun takes no article
+    ("Free parking would be nice.", NO, NO),  # a suggestion, no opinion held
+    ("The app is slow, the phone line is always engaged and the email replies take days.", NO, NO),  # two complaints would remain
+    ("nice paperweight.", NO, NO),  # sarcasm: a dead device
 ]
 
 
