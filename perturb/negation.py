@@ -86,6 +86,7 @@ RULES = {
     "negation/do-support": "flip",
     "negation/removal": "flip",
     "negation/fragment": "flip",
+    "negation/quantifier": "flip",
 }
 
 # Default when the text shows no contraction style of its own (reviews are informal).
@@ -132,6 +133,11 @@ PRE_NEG_ADVS = {"definitely", "certainly", "probably", "surely", "absolutely", "
                 "also", "just"}
 _TIME_NOUNS = {"day", "night", "weekend", "week", "month", "year", "morning", "evening", "afternoon",
                "winter", "summer", "season", "trip", "way", "long"}
+# Nouns of a repeated occasion after "every"/"each" ("on time every week", "helpful every time").
+_EVERY_NOUNS = frozenset({"day", "week", "month", "year", "morning", "evening", "night", "time", "visit",
+                          "order", "delivery", "box", "ride", "trip", "stay", "appointment", "weekend"})
+# Universal subjects a negation may deny in front ("Everything was fine" -> "Not everything was fine").
+_UNIVERSAL_SUBJECTS = frozenset({"everything", "everyone", "everybody"})
 _COND_MARKS = {"if", "unless", "whenever", "whether"}
 # Raising/aspect verbs whose infinitive complement is part of their own predicate.
 _RAISING = {"seem", "appear", "tend", "continue", "keep", "happen", "prove", "turn", "start", "begin"}
@@ -1026,13 +1032,78 @@ def dropped_subject(cl: Clause) -> bool:
     return first is not None and first.i == finite.i
 
 
-def insertion(cl: Clause, style: str, new_base: str | None = None, praise: bool = False) -> tuple[str, list[TokenEdit]] | str:
+def downtoners(cl: Clause) -> list[tuple[int, int]]:
+    """Token ranges of the downtoners on the clause's opinion adjective or adverb ("a bit slow",
+    "a little pricey", "slightly small", "somewhat dated"), which a negation drops: "isn't slow"
+    is how English denies "is a bit slow" ("isn't a bit slow" would read as "not at all",
+    "*isn't slightly small" is no English: the downtoners are positive-polarity items; handbook
+    grammar, from memory: Huddleston & Pullum 2002, ch. 9). Empty when there is none or one stands
+    elsewhere."""
+    doc = cl.head.doc
+    opinion = {t.i for t in cl.opinion}
+    out = []
+    for x in cl.own:
+        n = g.norm(x.text)
+        a_before = x.i > 0 and g.norm(tokens(doc)[x.i - 1].text) == "a"
+        if n in ("bit", "little") and a_before or n in ("slightly", "somewhat"):
+            target = x.head
+            if not (x.dep_ in ("npadvmod", "advmod") and target.i in opinion and target.pos_ in ("ADJ", "ADV")
+                    and target.tag_ in ("JJ", "RB") and x.i < target.i):
+                return []
+            if target.i != x.i + 1:
+                return []  # "a bit too slow", "slightly more expensive": something stands between
+            out.append((x.i - 1 if n in ("bit", "little") else x.i, x.i + 1))
+    return out
+
+
+def universal_subject(cl: Clause, lexicon: "Lexicon") -> "Token | None":
+    """The first word of a universal subject of praise that a negation may deny in front, or None:
+    "Everything was fine." -> "Not everything was fine.", "Every rental has been smooth." -> "Not
+    every rental ...", "All the staff were friendly." -> "Not all the staff ...". Denying "all" is
+    no longer praise, which is what `flip` asks; over a complaint ("Everything is slow" -> "Not
+    everything is slow") the complaint stays, so praise only. The subject must open its
+    sentence or follow "and", and the rest of the clause must be one a verb negation could take."""
+    subj = cl.subj
+    if subj is None or cl.negated or not _all_positive(cl, lexicon) or subj.dep_ != "nsubj":
+        return None
+    first = subj.left_edge
+    n = g.norm(subj.text)
+    words = [g.norm(t.text) for t in subj.subtree]
+    if n in _UNIVERSAL_SUBJECTS:
+        if first.i != subj.i or len(words) > 1:
+            return None  # "everything about this place": keep to the bare word
+    elif words[0] not in ("every", "all") or n in ("all", "every") or subj.tag_ not in ("NN", "NNS") or \
+            words[0] == "every" and subj.tag_ != "NN":
+        return None
+    doc = subj.doc
+    sent = sent_of(subj)
+    before = [t for t in sent if t.i < first.i]
+    if before and not (len(before) >= 1 and g.norm(before[-1].text) == "and" and before[-1].head.i != subj.i):
+        return None
+    quant = {t.i for t in subj.subtree if g.norm(t.text) in ("every", "all", "everything", "everyone", "everybody")}
+    if isinstance(_insertion(cl, DEFAULT_STYLE, None, True, quant), str):
+        return None  # a positive-polarity or scope word elsewhere, an inversion, ...
+    return tokens(doc)[first.i]
+
+
+def insertion(cl: Clause, style: str, new_base: str | None = None, praise: bool = False,
+              drop_downtoners: bool = False) -> tuple[str, list[TokenEdit]] | str:
     """Negate a clause: (rule, edits), or the reason it cannot be done.
 
     ``new_base`` replaces the lexical verb (double negation: like -> don't dislike). With
     ``praise`` (every opinion word of the clause positive) the negation may take a frequency
     word in its scope: "isn't always helpful" is no longer praise, which is all `flip` asks.
+    With ``drop_downtoners`` a downtoner on the opinion word goes ("is a bit slow" -> "isn't
+    slow", see :func:`downtoners`).
     """
+    dropped = downtoners(cl) if drop_downtoners else []
+    res = _insertion(cl, style, new_base, praise, {i for a, b in dropped for i in range(a, b)})
+    if isinstance(res, str) or not dropped:
+        return res
+    return res[0], [*res[1], *(TokenEdit(a, b, "") for a, b in dropped)]
+
+
+def _insertion(cl: Clause, style: str, new_base: str | None, praise: bool, gone: set[int]) -> tuple[str, list[TokenEdit]] | str:
     head, subj = cl.head, cl.subj
     doc = head.doc
     if subj is None and not dropped_subject(cl):
@@ -1043,6 +1114,8 @@ def insertion(cl: Clause, style: str, new_base: str | None = None, praise: bool 
         return "already negated"
     for x in cl.own:
         n = g.norm(x.text)
+        if x.i in gone:
+            continue
         if n == "little" and x.i > 0 and g.norm(tokens(doc)[x.i - 1].text) == "a":
             return "hedge 'a little'"
         if n == "all" and x.i + 1 < len(doc) and g.norm(tokens(doc)[x.i + 1].text) in _TIME_NOUNS | {"the"}:
@@ -1053,6 +1126,9 @@ def insertion(cl: Clause, style: str, new_base: str | None = None, praise: bool 
             continue  # the superlative "the most painful", not the quantifier "most bottles"
         if praise and n in _FREQUENCY_OK and x.dep_ == "advmod":
             continue
+        if praise and n in ("every", "each") and x.dep_ == "det" and x.head.dep_ == "npadvmod" and \
+                g.norm(x.head.text) in _EVERY_NOUNS:
+            continue  # "has been on time every week" -> "hasn't been on time every week": no longer praise
         if n in PPI or n in SCOPE_WORDS or (n == "too" and x.head.pos_ in ("VERB", "AUX")) or (n == "well" and x.i > 0 and g.norm(tokens(doc)[x.i - 1].text) == "as"):
             return f"positive-polarity word {x.text!r}"
     finite = cl.auxes[0] if cl.auxes else head
@@ -1752,7 +1828,8 @@ def _frequency_after_aux(cl: Clause) -> "Token | None":
     finite = cl.auxes[0] if cl.auxes else cl.head
     doc = finite.doc
     nxt = tokens(doc)[finite.i + 1] if finite.i + 1 < len(doc) else None
-    if nxt is not None and nxt.pos_ == "ADV" and nxt.dep_ != "acomp" and g.norm(nxt.text) not in _AFTER_AUX_OK | PRE_NEG_ADVS:
+    if nxt is not None and nxt.pos_ == "ADV" and nxt.dep_ != "acomp" and g.norm(nxt.text) not in _AFTER_AUX_OK | PRE_NEG_ADVS \
+            and (nxt.i, nxt.i + 1) not in downtoners(cl):  # "is slightly rude" -> "isn't rude": the negation drops it
         return nxt  # ("was late": the complement itself, tagged RB, is no adverb in the way)
     return None
 
@@ -1954,8 +2031,12 @@ def plan(doc: "Doc", ctx: Context) -> "Candidate | str":
             rules.append("negation/removal")
             edits.extend(res)
             removed += 1
+        elif (q := universal_subject(cl, ctx.lexicon)) is not None:
+            rules.append("negation/quantifier")
+            edits.append(_not_before(q, "not"))
+            inserted += 1
         else:
-            res2 = insertion(cl, style, praise=_all_positive(cl, ctx.lexicon))
+            res2 = insertion(cl, style, praise=_all_positive(cl, ctx.lexicon), drop_downtoners=True)
             if isinstance(res2, str):
                 return "insertion: " + res2
             rules.append(res2[0])

@@ -208,7 +208,19 @@ CASES = [
     ("I'm really impressed with how warm this bag is.", "negation/copula", "I'm not really impressed with how warm this bag is."),
     ("The chair is wobbly on any ground that isn't flat.", "negation/copula", "The chair isn't wobbly on any ground that isn't flat."),
     ("The stove is perfect for quick coffee stops.", NO, NO),  # extreme word: 'isn't perfect' is a hedge
-    ("The strap is a little tight.", NO, NO),
+    # a downtoner goes with the negation: "isn't a bit slow" would read "not at all slow" (handbook
+    # grammar of positive-polarity items, from memory: Huddleston & Pullum 2002, ch. 9)
+    ("The strap is a little tight.", "negation/copula", "The strap isn't tight."),
+    ("The app is a bit slow.", "negation/copula", "The app isn't slow."),
+    ("It runs a bit slowly.", "negation/do-support", "It doesn't run slowly."),
+    ("The staff were slightly rude.", "negation/copula", "The staff weren't rude."),
+    # a universal subject of praise is denied in front: "not all" is no longer praise
+    ("Everything was fine.", "negation/quantifier", "Not everything was fine."),
+    ("Every rental has been smooth.", "negation/quantifier", "Not every rental has been smooth."),
+    ("All the staff were friendly.", "negation/quantifier", "Not all the staff were friendly."),
+    ("Everything is slow.", NO, NO),  # over a complaint "not everything is slow" still complains
+    ("Everything about this place is easy.", NO, NO),  # a qualified subject: keep to the bare word
+    ("Delivery has been on time every week.", "negation/modal", "Delivery hasn't been on time every week."),  # praise: "not every week"
     ("The straps won't stay tight and keep loosening.", NO, NO),
     ("The lantern has been reliable.", "negation/modal", "The lantern hasn't been reliable."),
     ("It's been great.", "negation/modal", "It hasn't been great."),
