@@ -398,6 +398,8 @@ def _fragment(doc: "Doc", an, lex) -> Iterator[Candidate]:
     if any(o is None for o in opps):
         return
     edits = [e for e in fr.edits if e is not lead]
+    if any(e.start <= t.i < e.end for e in edits for t in targets):
+        return  # the fragment's own edit covers an adjective ("easy, delicious" -> "easy or delicious")
     for t, (word, _kind) in zip(targets, opps):
         if t.i != tok.i:
             edits.append(TokenEdit(t.i, t.i + 1, match_case(word, t.text) if not t.text[:1].isupper() else word))

@@ -285,6 +285,13 @@ def _word_opinion(tok: "Token", lexicon: "Lexicon"):
         hit = lexicon.lookup(g.norm(tok.text), "ADJ")
     if hit is None and pos == "ADV" and tok.dep_ == "acomp":  # "was late again": an adjective tagged RB
         hit = lexicon.lookup(g.norm(tok.text), "ADJ")
+    if hit is None and pos == "ADV" and g.norm(tok.text) == "late" and tok.dep_ == "advmod" and tok.head.pos_ == "VERB" \
+            and tok.i > tok.head.i and not any(c.dep_ in ("npadvmod", "nummod") for c in tok.children):
+        # "the engineer arrived late": the adjective as an adverb of time (not "two hours late", a measure)
+        hit = lexicon.lookup("late", "ADJ")
+    if hit is None and pos == "ADJ" and tok.dep_ in ("acomp", "attr"):  # "has been rubbish all week": a noun of opinion tagged JJ
+        noun = lexicon.lookup(g.norm(tok.text), "NOUN")
+        hit = noun if noun is not None and " " not in noun.word else None
     if hit is None and pos == "VERB" and tok.tag_ == "VBN" and (
         tok.dep_ == "acomp" or any(c.dep_ == "auxpass" for c in tok.children)
     ):  # "I was impressed / disappointed" (passive), not "I have worn"
@@ -890,6 +897,9 @@ def _noun_phrase_list(sent, root: "Token", toks: list["Token"], ops: list["Token
     return Fragment(root, edits, len(edits), 0)
 
 
+_FRAME_PREPS = frozenset({"on", "in", "at", "for", "about", "to", "from", "during"})
+
+
 def _adjective_list(sent, root: "Token", toks: list["Token"], ops: list["Token"], lexicon: "Lexicon") -> "Fragment | None":
     """A verbless list of opinion adjectives of one polarity joined by one "and" ("Loud, dirty and
     overpriced.", "Really tasty and filling."): "Not" in front and "or" for "and" ("Not loud, dirty
@@ -907,14 +917,26 @@ def _adjective_list(sent, root: "Token", toks: list["Token"], ops: list["Token"]
     if len(ops) < 2 or len({opinion_of(t, lexicon).polarity for t in ops}) != 1:
         return None  # "Good coffee, bad chairs": mixed; a plain adjective ("Loud, dirty and overpriced") may join two opinion ones
     ccs = [t for t in toks if t.dep_ == "cc"]
-    if len(ccs) != 1 or g.norm(ccs[0].text) != "and" or ccs[0].head.i not in ids or ccs[0].i > chain[-1].i:
+    chain.sort(key=lambda t: t.i)
+    if not ccs and len(chain) >= 3 and all(
+            b.i == a.i + 2 and tokens(doc)[a.i + 1].text == "," for a, b in zip(chain, chain[1:])):
+        # "Quick, easy, delicious." -> "Not quick, easy or delicious.": the last comma becomes "or"
+        last = chain[-2]
+        join = TokenEdit(last.i, last.i + 2, f"{last.text} or")
+    elif len(ccs) != 1 or g.norm(ccs[0].text) != "and" or ccs[0].head.i not in ids or ccs[0].i > chain[-1].i:
         return None
-    if g.norm(chain[0].text) in ("nice", "good", "lovely", "fine") and ccs[0].i == chain[0].i + 1:
+    else:
+        join = TokenEdit(ccs[0].i, ccs[0].i + 1, "or")
+    if ccs and g.norm(chain[0].text) in ("nice", "good", "lovely", "fine") and ccs[0].i == chain[0].i + 1:
         return None  # "Nice and warm." means "very warm" (a fixed degree pattern)
     start = min(ids)
     degrees = []
+    # a closing phrase on the last adjective ("Rude and unhelpful on the phone."): not "with",
+    # which adds a feature rather than a frame (blind review, round 20)
+    tail = {x.i for a in chain for c in a.children if c.dep_ == "prep" and c.i > chain[-1].i and g.norm(c.text) in _FRAME_PREPS
+            for x in c.subtree if opinion_of(x, lexicon) is None}
     for t in toks:
-        if t.i in ids or t.i == ccs[0].i or (t.is_punct and t.text in (",", ".", "!")):
+        if t.i in ids or ccs and t.i == ccs[0].i or (t.is_punct and t.text in (",", ".", "!")) or t.i in tail:
             continue
         if t.pos_ == "ADV" and g.norm(t.text) in _DEGREE and t.head.i in ids and t.i < start:
             degrees.append(t)  # "Really tasty and filling": a degree word in front of the list
@@ -925,7 +947,7 @@ def _adjective_list(sent, root: "Token", toks: list["Token"], ops: list["Token"]
     first = min([*degrees, *chain], key=lambda t: t.i)
     if first.i != sent.start or not toks[-1].is_punct and toks[-1].i != max(ids):
         return None
-    return Fragment(root, [_not_before(first, "not"), TokenEdit(ccs[0].i, ccs[0].i + 1, "or")], 1, 0)
+    return Fragment(root, [_not_before(first, "not"), join], 1, 0)
 
 
 def trailing_plain_conjunct(an: Analysis) -> Clause | None:

@@ -214,6 +214,12 @@ CASES = [
     ("The app is a bit slow.", "negation/copula", "The app isn't slow."),
     ("It runs a bit slowly.", "negation/do-support", "It doesn't run slowly."),
     ("The staff were slightly rude.", "negation/copula", "The staff weren't rude."),
+    ("Quick, easy, delicious.", "negation/fragment", "Not quick, easy or delicious."),  # a list without "and": the last comma becomes "or"
+    ("Rude and unhelpful on the phone.", "negation/fragment", "Not rude or unhelpful on the phone."),  # a closing frame phrase
+    ("Clean and quiet with a lovely garden.", NO, NO),  # "with" adds a feature (and an opinion word)
+    ("The engineer arrived late.", "negation/do-support", "The engineer didn't arrive late."),  # "late" as an adverb of time
+    ("The engineer arrived two hours late.", NO, NO),  # a measure: "didn't arrive two hours late" may be three
+    ("My internet has been rubbish all week.", "negation/modal", "My internet hasn't been rubbish all week."),  # a noun of opinion tagged JJ
     # a universal subject of praise is denied in front: "not all" is no longer praise
     ("Everything was fine.", "negation/quantifier", "Not everything was fine."),
     ("Every rental has been smooth.", "negation/quantifier", "Not every rental has been smooth."),
