@@ -744,7 +744,8 @@ def fragment(sent, lexicon: "Lexicon") -> Fragment | str:
     if adjlike:
         if op.i != root.i:
             return "the opinion word is not the adjective"
-        if any(c.i > root.i and c.dep_ not in ("prep", "xcomp", "punct", "npadvmod") and not is_noise(c) for c in root.children):
+        if any(c.i > root.i and c.dep_ not in ("prep", "xcomp", "punct", "npadvmod") and not is_noise(c) and not _closing_adv(c)
+               for c in root.children):
             return "a clause after the adjective"
         # the adjective and the degree words right before it: "not very comfortable"
         p = root.i
@@ -779,7 +780,8 @@ def fragment(sent, lexicon: "Lexicon") -> Fragment | str:
             if not ok or t.pos_ == "INTJ":
                 return f"unexpected word {t.text!r} before the noun"
     for c in root.children:
-        if c.i > root.i and c.dep_ not in ("prep", "relcl", "punct") and not (c.dep_ == "advmod" and g.norm(c.text) == "there") and not is_noise(c):
+        if c.i > root.i and c.dep_ not in ("prep", "relcl", "punct") and not (c.dep_ == "advmod" and g.norm(c.text) == "there") \
+                and not is_noise(c) and not _closing_adv(c):
             return f"unexpected {c.dep_} after the noun"
     first = phrase[0]
     if not _lead_ok(sent, first.i):
@@ -799,6 +801,15 @@ def fragment(sent, lexicon: "Lexicon") -> Fragment | str:
     if words.startswith("!"):
         return words[1:]
     return Fragment(root, [_not_before(first, words)], 1, 0)
+
+
+def _closing_adv(c: "Token") -> bool:
+    """A verdict's closing frame after the phrase ("Very pleased overall.", "Really friendly so
+    far."): it stays outside the negation ("Not very pleased overall.")."""
+    if c.dep_ != "advmod" or list(c.doc[c.i + 1:c.i + 2]) and not c.doc[c.i + 1].is_punct:
+        return False
+    n = g.norm(c.text)
+    return n == "overall" or n == "far" and [g.norm(x.text) for x in c.children] == ["so"]
 
 
 def _intra_word_hyphen(t: "Token") -> bool:
@@ -1702,8 +1713,37 @@ _DEGREE_HEDGE = frozenset({"very", "really", "so", "too", "quite", "that", "extr
 _HAVE_BE = frozenset({"be", "have", "get", "give", "offer", "provide", "make", "take", "do"})
 
 
-def _insertion_guard(cl: Clause, main: list["Token"], lexicon: "Lexicon") -> str | None:
-    """Why inserting a negation into this clause would not give the opposite opinion, or None."""
+# Amplifiers a negation drops from a complaint: "is very slow" -> "isn't slow" ("isn't very slow"
+# is a hedge that still complains, blind review, round 4).
+_DROPPED_DEGREES = frozenset({"very", "really", "extremely", "super", "incredibly", "terribly", "awfully"})
+
+
+def degrees_to_drop(cl: Clause, lexicon: "Lexicon") -> list["Token"]:
+    """The amplifiers right before the negative opinion adjectives or adverbs of a clause to be
+    negated ("Support chat is very slow." -> "Support chat isn't slow.", "This is really
+    frustrating." -> "This isn't frustrating."): denying the complaint itself is what `flip`
+    asks, and the amplifier under the negation would hedge it. Empty when any degree word on a
+    negative word is another one ("so", "too", "quite") or stands elsewhere."""
+    if cl.negated:
+        return []
+    out = []
+    for t in _main_opinion(cl, lexicon):
+        entry = opinion_of(t, lexicon)
+        degree = [c for c in t.children if c.dep_ == "advmod" and g.norm(c.text) in _DEGREE_HEDGE | _DROPPED_DEGREES
+                  and not (g.norm(c.text) == "too" and not list(c.children))]
+        if entry is None or entry.polarity > 0 or not degree:
+            continue
+        if t.pos_ not in ("ADJ", "ADV") or len(degree) != 1 or g.norm(degree[0].text) not in _DROPPED_DEGREES \
+                or degree[0].i != t.i - 1 or list(degree[0].children):
+            return []
+        out.append(degree[0])
+    return out
+
+
+def _insertion_guard(cl: Clause, main: list["Token"], lexicon: "Lexicon", dropped: "list[Token] | None" = None) -> str | None:
+    """Why inserting a negation into this clause would not give the opposite opinion, or None.
+    ``dropped``: degree words the negation will drop (see :func:`degrees_to_drop`)."""
+    gone = {t.i for t in dropped or []}
     doc = cl.head.doc
     for x in cl.own:
         n = g.norm(x.text)
@@ -1741,7 +1781,8 @@ def _insertion_guard(cl: Clause, main: list["Token"], lexicon: "Lexicon") -> str
     if cl.auxes and g.aux_word(cl.auxes[0]) == "can" and g.base_form(cl.head) == "be":
         return "'can be' states a possibility"  # "this can be a problem" -> "can't be a problem" is no opposite
     if any(g.norm(x.text) in ("about", "around", "roughly") and x.head.dep_ in ("pobj", "npadvmod", "prep") or
-           g.norm(x.text) in ("about", "around") and x.dep_ in ("advmod", "quantmod") for x in cl.own):
+           g.norm(x.text) in ("about", "around") and x.dep_ in ("advmod", "quantmod") and x.i + 1 < len(x.doc)
+           and not x.doc[x.i + 1].is_punct for x in cl.own):  # not "the best shop around."
         return "an approximate measure"  # "worked great for about a month"
     keep = {t.i for t in predicate_opinion(cl)} | {cl.head.i}
     for x in (c for t in cl.own if t.i in keep for c in t.children):
@@ -1770,7 +1811,7 @@ def _insertion_guard(cl: Clause, main: list["Token"], lexicon: "Lexicon") -> str
     for t in main:
         entry = opinion_of(t, lexicon)
         degree = [c for c in t.children if c.dep_ == "advmod" and g.norm(c.text) in _DEGREE_HEDGE
-                  and not (g.norm(c.text) == "too" and not list(c.children))]  # "isn't too heavy" denies the excess
+                  and not (g.norm(c.text) == "too" and not list(c.children)) and c.i not in gone]  # "isn't too heavy" denies the excess
         if t.i == cl.head.i or t.head.i == cl.head.i:
             degree += [c for c in cl.head.children if c.dep_ == "advmod" and g.norm(c.text) in _DEGREE_HEDGE and c.i < cl.head.i]
         if entry is not None and entry.polarity < 0 and degree:
@@ -1909,10 +1950,11 @@ def or_for_and(cl: Clause, lexicon: "Lexicon") -> TokenEdit | None:
     return TokenEdit(ccs[0].i, ccs[0].i + 1, "or")
 
 
-def clause_doubt(cl: Clause, lexicon: "Lexicon", coordination: bool = False) -> str | None:
+def clause_doubt(cl: Clause, lexicon: "Lexicon", coordination: bool = False, drop_degrees: bool = False) -> str | None:
     """Why toggling this opinion clause would not give a clear opposite (a hedge, a part flip, a
     misplaced negation), or None. Shared by negation and double negation. With ``coordination``
-    a coordinated predicate that :func:`or_for_and` can rewrite passes."""
+    a coordinated predicate that :func:`or_for_and` can rewrite passes; with ``drop_degrees`` a
+    degree word on a complaint that :func:`degrees_to_drop` drops passes."""
     if is_noise(cl.head):
         return "a link or tag read as a verb"
     if not _main_like(cl.head):
@@ -1966,7 +2008,7 @@ def clause_doubt(cl: Clause, lexicon: "Lexicon", coordination: bool = False) -> 
         if why is not None:
             return why
     if not cl.negated:
-        why = _insertion_guard(cl, main, lexicon)
+        why = _insertion_guard(cl, main, lexicon, degrees_to_drop(cl, lexicon) if drop_degrees else [])
         if why is not None:
             return why
     if not cl.negated and _frequency_after_aux(cl) is not None:
@@ -2021,7 +2063,7 @@ def plan(doc: "Doc", ctx: Context) -> "Candidate | str":
     for cl in clauses:
         if cl.nonfinite_opinion:
             return "opinion in a non-finite adverbial"
-        why = clause_doubt(cl, ctx.lexicon, coordination=not cl.negated)
+        why = clause_doubt(cl, ctx.lexicon, coordination=not cl.negated, drop_degrees=True)
         if why is not None:
             return why
         if len({e.polarity for e in (opinion_of(t, ctx.lexicon) for t in predicate_opinion(cl)) if e is not None}) > 1:
@@ -2063,6 +2105,7 @@ def plan(doc: "Doc", ctx: Context) -> "Candidate | str":
                 return "insertion: " + res2
             rules.append(res2[0])
             edits.extend(res2[1])
+            edits.extend(TokenEdit(d.i, d.i + 1, "") for d in degrees_to_drop(cl, ctx.lexicon))
             inserted += 1
             edit = or_for_and(cl, ctx.lexicon)  # clause_doubt let a coordination through only if it exists
             if edit is not None:

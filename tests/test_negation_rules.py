@@ -197,7 +197,7 @@ CASES = [
     ("The tent is great because it never leaks.", "negation/copula", "The tent isn't great because it leaks."),
     ("These are the most painful boots I have ever worn.", NO, NO),  # superlative
     ("The tent didn't leak a drop.", NO, NO),  # minimiser
-    ("I'm really disappointed that the zipper broke.", NO, NO),  # "not really disappointed" is a hedge
+    ("I'm really disappointed that the zipper broke.", "negation/copula", "I'm not disappointed that the zipper broke."),  # the amplifier goes: "not really disappointed" is a hedge
     ("The kids loved the tent and the dog did too.", NO, NO),  # elliptical "did" echoes "loved"
     ("The tent leaks, the poles bend and the zipper sticks.", NO, NO),  # parser leaves "leaks" unattached
     ("The instructions could be clearer.", "negation/modal", "The instructions couldn't be clearer."),
@@ -220,6 +220,11 @@ CASES = [
     ("The engineer arrived late.", "negation/do-support", "The engineer didn't arrive late."),  # "late" as an adverb of time
     ("The engineer arrived two hours late.", NO, NO),  # a measure: "didn't arrive two hours late" may be three
     ("My internet has been rubbish all week.", "negation/modal", "My internet hasn't been rubbish all week."),  # a noun of opinion tagged JJ
+    ("Very pleased overall.", "negation/fragment", "Not very pleased overall."),  # a closing frame stays outside
+    ("Great service overall.", "negation/fragment", "Not great service overall."),
+    ("Really friendly so far.", "negation/fragment", "Not really friendly so far."),
+    ("It's the best shop around.", "negation/copula", "It's not the best shop around."),  # "around" here is no approximate measure
+    ("It worked great for around a month.", NO, NO),  # an approximate measure
     # a universal subject of praise is denied in front: "not all" is no longer praise
     ("Everything was fine.", "negation/quantifier", "Not everything was fine."),
     ("Every rental has been smooth.", "negation/quantifier", "Not every rental has been smooth."),
@@ -433,7 +438,10 @@ CASES = [
     ("It isn't always accurate.", NO, NO),  # "not always": removal would not give the opposite
     ("At least it's prettier than the last one.", NO, NO),  # comparative
     ("It is easy to use and well made.", NO, NO),  # coordinated predicate: "isn't A and B" is unclear
-    ("The manual is very bad.", NO, NO),  # "isn't very bad" is a hedge
+    ("The manual is very bad.", "negation/copula", "The manual isn't bad."),  # the amplifier goes: "isn't very bad" is a hedge
+    ("Support chat is very slow.", "negation/copula", "Support chat isn't slow."),
+    ("The app is so slow.", NO, NO),  # "so" stays a degree word under the negation ("not so slow" is less slow)
+    ("It's very good.", "negation/copula", "It's not very good."),  # praise keeps its amplifier: "not very good" is no longer praise
     ("I really hate the bus stop.", NO, NO),  # "don't really hate" likewise
     ("That was the only drawback.", NO, NO),  # focus "only"
     ("There is a lack of pockets.", NO, NO),  # existential: wants "no", not "not a"
