@@ -497,6 +497,9 @@ def _opinion_tokens(doc: "Doc", lex: "Lexicon") -> Iterator[tuple["Token", "Opin
             hit = lex.lookup(lemma(tok), tok.pos_)
             if hit is None and tok.pos_ == "NOUN" and _is_adjective(tok, lex):
                 hit = lex.lookup(tok.lower_, "ADJ")
+        if hit is None and tok.pos_ in ("ADJ", "ADV") and tok.i > 0 and tok.doc[tok.i - 1].lower_ == "too" \
+                and tok.doc[tok.i - 1].head.i == tok.i:
+            hit = OpinionWord(tok.lower_, tok.pos_, -1, "gradable")  # "the room is too small": an excess complains
         if hit is not None and hit.context == "alone" and linking_use(tok, lex):
             continue  # "smells fresh": a linking verb, the complement carries the opinion
         if hit is not None and learned_silenced(tok, hit, lex):
@@ -713,7 +716,7 @@ def _edits_for(doc: "Doc", tok: "Token", entry: "OpinionWord", role: str, degree
         return
     extreme = entry.grade == "extreme"
     nxt = tokens(doc)[tok.i + 1] if tok.i + 1 < len(doc) else None
-    if tok.lower_ in HENDIADYS and nxt is not None and nxt.lower_ == "and":
+    if tok.lower_ in HENDIADYS and nxt is not None and nxt.lower_ == "and" and nxt.head.i == tok.i:
         return  # "nice and light" means "pleasantly light": "very nice and light" loses that
     if mod is None:
         prev = tokens(doc)[tok.i - 1] if tok.i > sent_of(tok).start else None

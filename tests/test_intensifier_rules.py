@@ -143,6 +143,8 @@ CASES = [
     ("The tent stays surprisingly cool.", AMP, set()),  # already modified by an adverb
     # hendiadys, repeated stems, curly apostrophes, several sentences
     ("Nice and light!", AMP, set()),  # "nice and light" = pleasantly light
+    ("The flat is lovely and the building is well maintained.", AMP,  # "and" joins the clauses: no hendiadys
+     {"The flat is very lovely and the building is well maintained."}),
     ("The price was fair.", SOFT, {"The price was somewhat fair."}),  # not "fairly fair"
     ("I’m very happy with it.", REM, {"I’m happy with it."}),
     ("I love this tent. The poles are light.", AMP, {"I love this tent. The poles are very light.",
