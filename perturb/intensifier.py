@@ -479,6 +479,10 @@ def _as_well(tok: "Token") -> bool:
     return before == "as" or after == "as"
 
 
+# "too numerous to mention": a count past listing, no complaint (blind review, round 14 passed its pair)
+_TOO_MANY_TO = frozenset({"mention", "count", "list", "name", "describe"})
+
+
 def _opinion_tokens(doc: "Doc", lex: "Lexicon") -> Iterator[tuple["Token", "OpinionWord"]]:
     from pairflip.perturb.negation import learned_silenced  # (negation imports this module)
 
@@ -498,7 +502,8 @@ def _opinion_tokens(doc: "Doc", lex: "Lexicon") -> Iterator[tuple["Token", "Opin
             if hit is None and tok.pos_ == "NOUN" and _is_adjective(tok, lex):
                 hit = lex.lookup(tok.lower_, "ADJ")
         if hit is None and tok.pos_ in ("ADJ", "ADV") and tok.i > 0 and tok.doc[tok.i - 1].lower_ == "too" \
-                and tok.doc[tok.i - 1].head.i == tok.i:
+                and tok.doc[tok.i - 1].head.i == tok.i and not any(
+                    c.dep_ == "xcomp" and lemma(c) in _TOO_MANY_TO for c in tok.children):
             hit = OpinionWord(tok.lower_, tok.pos_, -1, "gradable")  # "the room is too small": an excess complains
         if hit is not None and hit.context == "alone" and linking_use(tok, lex):
             continue  # "smells fresh": a linking verb, the complement carries the opinion

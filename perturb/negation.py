@@ -1736,6 +1736,9 @@ def degrees_to_drop(cl: Clause, lexicon: "Lexicon") -> list["Token"]:
         if t.pos_ not in ("ADJ", "ADV") or len(degree) != 1 or g.norm(degree[0].text) not in _DROPPED_DEGREES \
                 or degree[0].i != t.i - 1 or list(degree[0].children):
             return []
+        art = g.norm(t.doc[degree[0].i - 1].text) if degree[0].i > 0 else ""
+        if art in ("a", "an") and indefinite_for(t.text) != art:
+            return []  # "is a really annoying" -> "*isn't a annoying"
         out.append(degree[0])
     return out
 
@@ -2033,6 +2036,9 @@ def plan(doc: "Doc", ctx: Context) -> "Candidate | str":
     if why is not None:
         return why
     low = doc_text(doc).lower()
+    if any(g.norm(t.text) == "please" and t.head.tag_ == "VB" and not any(c.dep_ in _SUBJ_DEPS for c in t.head.children)
+           for t in tokens(doc)):
+        return "a request ('please ...')"  # "Please bring back the old menu, the new one is confusing": the request stays
     if _SARCASM.search(low):  # "not a nice paperweight" still mocks (round 20v); double negation keeps it (19v)
         return "sarcasm ('nice paperweight')"
     if "to say the least" in low:

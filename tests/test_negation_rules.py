@@ -225,6 +225,8 @@ CASES = [
     ("Really friendly so far.", "negation/fragment", "Not really friendly so far."),
     ("It's the best shop around.", "negation/copula", "It's not the best shop around."),  # "around" here is no approximate measure
     ("It worked great for around a month.", NO, NO),  # an approximate measure
+    ("Please bring back the old phone menu, the new one is confusing.", NO, NO),  # the request keeps the complaint
+    ("lens cap is a really annoying.", NO, NO),  # "*isn't a annoying": the article would not fit
     # a universal subject of praise is denied in front: "not all" is no longer praise
     ("Everything was fine.", "negation/quantifier", "Not everything was fine."),
     ("Every rental has been smooth.", "negation/quantifier", "Not every rental has been smooth."),
