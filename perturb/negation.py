@@ -19,7 +19,16 @@ Rules:
 * ``negation/removal``    — isn't -> is, didn't like -> liked, can't -> can, never -> (dropped)
 * ``negation/fragment``   — a sentence without a finite verb: "Great tent." -> "Not a great tent.",
   "Very comfortable." -> "Not very comfortable.", "Poor quality." -> "Not poor quality.",
-  "Best stove out there." -> "Not the best stove out there.", "Not bad." -> "Bad."
+  "Best stove out there." -> "Not the best stove out there.", "Not bad." -> "Bad.",
+  "Quick, easy, delicious." -> "Not quick, easy or delicious."
+* ``negation/quantifier`` — a universal subject of praise denied in front: "Everything was fine."
+  -> "Not everything was fine.", "Every rental has been smooth." -> "Not every rental ..."
+  (no longer praise; over a complaint "not everything is slow" still complains, so praise only)
+
+A downtoner on the opinion word goes with an inserted negation ("is a bit slow" -> "isn't slow":
+"*isn't slightly small" is no English), and so does an amplifier on a complaint ("is very slow" ->
+"isn't slow": "isn't very slow" is a hedge that still complains); praise keeps its amplifier
+("not very good" is no longer praise).
 
 Precision first (a skipped text costs little, a half-flipped pair misleads): the text is skipped
 when opinion or logic sits outside the negated clauses — emoticons, interjections, hashtags,
@@ -1965,6 +1974,8 @@ def clause_doubt(cl: Clause, lexicon: "Lexicon", coordination: bool = False, dro
     if cl.head.dep_ == "ccomp" and lemma(cl.head.head).lower() in _REPORT_VERBS and (
             cl.event or any(g.aux_word(a) in ("will", "would") for a in cl.auxes)):
         return "a reported promise"  # "The engineer said he would come back": a report, no opinion of the writer's (round 16)
+    if cl.subj is not None and any(c.dep_ == "det" and g.norm(c.text) in ("any", "whichever", "whatever") for c in cl.subj.children):
+        return "a free-choice subject ('any day is fine')"  # a reply that any option suits: no opinion (blind review, round 21w)
     if lemma(cl.head).lower() == "have" and cl.subj is not None and g.norm(cl.subj.text) in ("i", "we"):
         for obj in (c for c in cl.head.children if c.dep_ == "dobj"):
             adjs = [c for c in obj.children if c.dep_ == "amod" and c.pos_ == "ADJ"]

@@ -218,6 +218,7 @@ CASES = [
     ("The room is clean and quiet.", "double-negation/antonym", "The room isn't dirty or noisy."),  # control: no with-phrase
     ("Free parking would be nice.", NO, NO),  # a suggestion, no opinion held
     ("Outstanding care.", NO, NO),  # "*Not a bad care": a mass noun takes no article
+    ("Any day next week is fine.", NO, NO),  # a free-choice subject: a scheduling reply, no opinion (round 21w)
     ("nice paperweight.", "double-negation/antonym", "not an unpleasant paperweight."),  # judged right (round 19v); negation skips the sarcasm
 ]
 

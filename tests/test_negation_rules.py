@@ -227,6 +227,7 @@ CASES = [
     ("It worked great for around a month.", NO, NO),  # an approximate measure
     ("Please bring back the old phone menu, the new one is confusing.", NO, NO),  # the request keeps the complaint
     ("lens cap is a really annoying.", NO, NO),  # "*isn't a annoying": the article would not fit
+    ("Any day next week is fine.", NO, NO),  # a free-choice subject: a scheduling reply, no opinion (round 21w)
     # a universal subject of praise is denied in front: "not all" is no longer praise
     ("Everything was fine.", "negation/quantifier", "Not everything was fine."),
     ("Every rental has been smooth.", "negation/quantifier", "Not every rental has been smooth."),
