@@ -1034,12 +1034,13 @@ def _first_alpha_after(tok: "Token") -> "Token | None":
     return tokens(doc)[tok.i + 1] if tok.i + 1 < len(doc) else None
 
 
-def aux_negation(tok: "Token", style: str) -> list[TokenEdit] | None:
-    """Edits that negate a finite auxiliary or copula token in ``style``."""
+def aux_negation(tok: "Token", style: str, gone: "frozenset[int] | set[int]" = frozenset()) -> list[TokenEdit] | None:
+    """Edits that negate a finite auxiliary or copula token in ``style`` (``gone``: tokens the
+    negation drops, which the "not" does not follow)."""
     doc = tok.doc
     t = g.norm(tok.text)
     nxt = _first_alpha_after(tok)
-    if nxt is not None and nxt.dep_ == "advmod" and g.norm(nxt.text) in PRE_NEG_ADVS and nxt.head.i != nxt.i:
+    if nxt is not None and nxt.dep_ == "advmod" and g.norm(nxt.text) in PRE_NEG_ADVS and nxt.head.i != nxt.i and nxt.i not in gone:
         # "it is definitely worth it" -> "it is definitely not worth it" (natural in both styles)
         return [TokenEdit(nxt.i + 1, nxt.i + 1, "not")]
     if t in g.CLITICS:
@@ -1129,7 +1130,7 @@ def universal_subject(cl: Clause, lexicon: "Lexicon") -> "Token | None":
 
 
 def insertion(cl: Clause, style: str, new_base: str | None = None, praise: bool = False,
-              drop_downtoners: bool = False) -> tuple[str, list[TokenEdit]] | str:
+              drop_downtoners: bool = False, drop_degrees: "frozenset[int]" = frozenset()) -> tuple[str, list[TokenEdit]] | str:
     """Negate a clause: (rule, edits), or the reason it cannot be done.
 
     ``new_base`` replaces the lexical verb (double negation: like -> don't dislike). With
@@ -1139,7 +1140,8 @@ def insertion(cl: Clause, style: str, new_base: str | None = None, praise: bool 
     slow", see :func:`downtoners`).
     """
     dropped = downtoners(cl) if drop_downtoners else []
-    res = _insertion(cl, style, new_base, praise, {i for a, b in dropped for i in range(a, b)})
+    gone = {i for a, b in dropped for i in range(a, b)} | set(drop_degrees)
+    res = _insertion(cl, style, new_base, praise, gone)
     if isinstance(res, str) or not dropped:
         return res
     return res[0], [*res[1], *(TokenEdit(a, b, "") for a, b in dropped)]
@@ -1193,7 +1195,7 @@ def _insertion(cl: Clause, style: str, new_base: str | None, praise: bool, gone:
             return "counterfactual perfect"
         if kind == "modal" and g.aux_word(finite) in NO_NEG_MODALS:
             return f"'{g.aux_word(finite)} not' is no opposite"  # "may not encounter problems"
-        edits = aux_negation(finite, style)
+        edits = aux_negation(finite, style, gone)
         if edits is None:
             return "cannot negate the auxiliary"
         if new_base is not None:
@@ -1205,7 +1207,7 @@ def _insertion(cl: Clause, style: str, new_base: str | None, praise: bool, gone:
     if g.aux_kind(head) == "be" and g.base_form(head) == "be":
         if new_base is not None:
             return "copula has no verb to replace"
-        edits = aux_negation(head, style)
+        edits = aux_negation(head, style, gone)
         return ("negation/copula", edits) if edits else "cannot negate the copula"
     # do-support on a lexical verb
     tag = head.tag_
@@ -1630,7 +1632,7 @@ def _text_guard(doc: "Doc", lexicon: "Lexicon") -> str | None:
     return None
 
 
-def _emphasised(tok: "Token", lexicon: "Lexicon", inserting: bool = True) -> str | None:
+def _emphasised(tok: "Token", lexicon: "Lexicon", inserting: bool = True, dropped: "frozenset[int]" = frozenset()) -> str | None:
     """Why negating this opinion word would give a hedge, not the opposite, or None.
 
     Comparatives count only when a negation is inserted ("isn't prettier than the last"); a
@@ -1656,6 +1658,8 @@ def _emphasised(tok: "Token", lexicon: "Lexicon", inserting: bool = True) -> str
     if inserting and entry is not None and entry.polarity > 0 and excess_degree(tok) is not None:
         return f"'too' on praise {tok.text!r}"  # "wasn't too good to be true" still praises
     for c in tok.children:
+        if c.i in dropped:
+            continue  # the negation drops it (degrees_to_drop)
         if c.dep_ in ("advmod", "amod", "det", "predet") and g.norm(c.text) in EXTREME_DEGREE:
             return f"extreme amplifier {c.text!r}"
         if inserting and entry is not None and entry.polarity < 0 and c.dep_ == "advmod" and c.i < tok.i \
@@ -1725,25 +1729,35 @@ _HAVE_BE = frozenset({"be", "have", "get", "give", "offer", "provide", "make", "
 # Amplifiers a negation drops from a complaint: "is very slow" -> "isn't slow" ("isn't very slow"
 # is a hedge that still complains, blind review, round 4).
 _DROPPED_DEGREES = frozenset({"very", "really", "extremely", "super", "incredibly", "terribly", "awfully"})
+# Extreme amplifiers a negation drops from praise too: "was absolutely delicious" -> "wasn't
+# delicious" ("isn't absolutely stunning" and "is absolutely not stunning" both misread).
+_EXTREME_ADVERBS = frozenset({"absolutely", "totally", "utterly", "truly", "extremely", "incredibly",
+                              "exceptionally", "remarkably", "unbelievably", "insanely", "ridiculously"})
 
 
 def degrees_to_drop(cl: Clause, lexicon: "Lexicon") -> list["Token"]:
     """The amplifiers right before the negative opinion adjectives or adverbs of a clause to be
     negated ("Support chat is very slow." -> "Support chat isn't slow.", "This is really
     frustrating." -> "This isn't frustrating."): denying the complaint itself is what `flip`
-    asks, and the amplifier under the negation would hedge it. Empty when any degree word on a
-    negative word is another one ("so", "too", "quite") or stands elsewhere."""
+    asks, and the amplifier under the negation would hedge it. An extreme amplifier goes from
+    praise too ("was absolutely delicious" -> "wasn't delicious"); "very" and "really" stay on
+    praise ("not very good" is no longer praise). Empty when any degree word on an opinion word
+    is another one ("so", "too", "quite") or stands elsewhere."""
     if cl.negated:
         return []
     out = []
     for t in _main_opinion(cl, lexicon):
         entry = opinion_of(t, lexicon)
-        degree = [c for c in t.children if c.dep_ == "advmod" and g.norm(c.text) in _DEGREE_HEDGE | _DROPPED_DEGREES
+        praise = entry is not None and entry.polarity > 0
+        degree = [c for c in t.children if c.dep_ in ("advmod", "amod")
+                  and (g.norm(c.text) in (_EXTREME_ADVERBS if praise else _DEGREE_HEDGE | _DROPPED_DEGREES | _EXTREME_ADVERBS)
+                       or not praise and g.norm(c.text) in EXTREME_DEGREE)
                   and not (g.norm(c.text) == "too" and not list(c.children))]
-        if entry is None or entry.polarity > 0 or not degree:
+        if entry is None or not degree:
             continue
-        if t.pos_ not in ("ADJ", "ADV") or len(degree) != 1 or g.norm(degree[0].text) not in _DROPPED_DEGREES \
-                or degree[0].i != t.i - 1 or list(degree[0].children):
+        allowed = _EXTREME_ADVERBS if praise else _DROPPED_DEGREES | _EXTREME_ADVERBS
+        if t.pos_ not in ("ADJ", "ADV") or len(degree) != 1 or g.norm(degree[0].text) not in allowed \
+                or degree[0].dep_ != "advmod" or degree[0].i != t.i - 1 or list(degree[0].children):
             return []
         art = g.norm(t.doc[degree[0].i - 1].text) if degree[0].i > 0 else ""
         if art in ("a", "an") and indefinite_for(t.text) != art:
@@ -1895,7 +1909,7 @@ def _main_opinion(cl: Clause, lexicon: "Lexicon") -> list["Token"]:
     return out
 
 
-def _frequency_after_aux(cl: Clause) -> "Token | None":
+def _frequency_after_aux(cl: Clause, dropped: "frozenset[int]" = frozenset()) -> "Token | None":
     """An adverb right after the finite auxiliary that the negation must not precede ("are
     mostly thrilled" -> "*aren't mostly thrilled")."""
     if not cl.auxes and g.aux_kind(cl.head) != "be":
@@ -1904,7 +1918,7 @@ def _frequency_after_aux(cl: Clause) -> "Token | None":
     doc = finite.doc
     nxt = tokens(doc)[finite.i + 1] if finite.i + 1 < len(doc) else None
     if nxt is not None and nxt.pos_ == "ADV" and nxt.dep_ != "acomp" and g.norm(nxt.text) not in _AFTER_AUX_OK | PRE_NEG_ADVS \
-            and (nxt.i, nxt.i + 1) not in downtoners(cl):  # "is slightly rude" -> "isn't rude": the negation drops it
+            and (nxt.i, nxt.i + 1) not in downtoners(cl) and nxt.i not in dropped:  # "is slightly rude" -> "isn't rude": the negation drops it
         return nxt  # ("was late": the complement itself, tagged RB, is no adverb in the way)
     return None
 
@@ -2018,15 +2032,17 @@ def clause_doubt(cl: Clause, lexicon: "Lexicon", coordination: bool = False, dro
     if not main:
         return "no opinion word on the predicate"  # "the worst attack was led by ...": a factual claim
     for t in cl.opinion:
-        why = _emphasised(t, lexicon, inserting=not cl.negated)
+        why = _emphasised(t, lexicon, inserting=not cl.negated,
+                          dropped=frozenset(d.i for d in degrees_to_drop(cl, lexicon)) if drop_degrees else frozenset())
         if why is not None:
             return why
     if not cl.negated:
         why = _insertion_guard(cl, main, lexicon, degrees_to_drop(cl, lexicon) if drop_degrees else [])
         if why is not None:
             return why
-    if not cl.negated and _frequency_after_aux(cl) is not None:
-        return f"adverb {_frequency_after_aux(cl).text!r} after the auxiliary"
+    gone = frozenset(d.i for d in degrees_to_drop(cl, lexicon)) if drop_degrees else frozenset()
+    if not cl.negated and _frequency_after_aux(cl, gone) is not None:
+        return f"adverb {_frequency_after_aux(cl, gone).text!r} after the auxiliary"
     return None
 
 
@@ -2117,12 +2133,14 @@ def plan(doc: "Doc", ctx: Context) -> "Candidate | str":
             edits.append(_not_before(q, "not"))
             inserted += 1
         else:
-            res2 = insertion(cl, style, praise=_all_positive(cl, ctx.lexicon), drop_downtoners=True)
+            drops = degrees_to_drop(cl, ctx.lexicon)
+            res2 = insertion(cl, style, praise=_all_positive(cl, ctx.lexicon), drop_downtoners=True,
+                             drop_degrees=frozenset(d.i for d in drops))
             if isinstance(res2, str):
                 return "insertion: " + res2
             rules.append(res2[0])
             edits.extend(res2[1])
-            edits.extend(TokenEdit(d.i, d.i + 1, "") for d in degrees_to_drop(cl, ctx.lexicon))
+            edits.extend(TokenEdit(d.i, d.i + 1, "") for d in drops)
             inserted += 1
             edit = or_for_and(cl, ctx.lexicon)  # clause_doubt let a coordination through only if it exists
             if edit is not None:

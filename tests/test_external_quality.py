@@ -80,7 +80,8 @@ def _broken(source: str, variant: str, nlp) -> list[str]:
 @pytest.mark.xfail(
     strict=True,
     reason="known gap, reported as expected-to-fail (not as a pass): negation reaches about 7 % of the "
-    "clear-opinion snippets as whole sources, not 80 %; most misses carry no lexicon opinion word",
+    "clear-opinion snippets as whole sources (12.8 % of the product ones, 2026-12-04), not 80 %; most "
+    "misses carry no lexicon opinion word",
 )
 def test_negation_applies_to_most_clearly_opinionated_sentences(snippets, suite):
     clear = {t for r, t in snippets if abs(r) >= CLEAR}
@@ -90,17 +91,18 @@ def test_negation_applies_to_most_clearly_opinionated_sentences(snippets, suite)
     assert rate >= 0.80
 
 
-def test_negation_reaches_the_level_measured_on_2026_12_03(snippets, suite):
+def test_negation_reaches_the_level_measured_on_2026_12_04(snippets, suite):
     """A floor, not the goal: measured 2026-12-03 on this data, negation made a pair for 373 of
     the 5,114 clear-opinion snippets as a whole source (7.3 %) and for a sentence of 809 of them
     (15.8 %); a change that loses reach fails here. After the skips that blind review rounds 10-12
     led to (afternoon of the same day): 362 of 5,122 (7.1 %); late evening, after rounds 17-19:
-    369 of 5,122 (7.2 %)."""
+    369 of 5,122 (7.2 %); 2026-12-04, after rounds 20-21w: 376 of 5,122 (7.3 %), and 314 of the
+    2,455 clear-opinion product snippets (12.8 %)."""
     clear = [t for r, t in snippets if abs(r) >= CLEAR]
     negated = {p.source for p in suite if p.family == "negation"}
     whole = sum(1 for t in clear if t in negated)
     print(f"negation: {whole} of {len(clear)} clear-opinion snippets as a whole source ({whole / len(clear):.1%})")
-    assert whole / len(clear) >= 0.07
+    assert whole / len(clear) >= 0.073
 
 
 def test_broken_form_checks_flag_under_one_percent(suite, nlp):

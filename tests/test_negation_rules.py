@@ -407,7 +407,10 @@ CASES = [
     ("There were no problems.", "negation/removal", "There were problems."),  # flip: praise gone (brief v2)
     ("I love it too.", NO, NO),
     ("The stove is pretty good.", NO, NO),
-    ("It is absolutely perfect.", NO, NO),
+    ("It is absolutely perfect.", "negation/copula", "It isn't perfect."),  # the extreme amplifier goes ("*isn't absolutely perfect")
+    ("The beef ragu was absolutely delicious.", "negation/copula", "The beef ragu wasn't delicious."),
+    ("The staff were extremely helpful.", "negation/copula", "The staff weren't helpful."),
+    ("It is definitely worth it.", "negation/copula", "It is definitely not worth it."),  # a stance adverb stays, before "not"
     ("It always works.", "negation/do-support", "It doesn't always work."),  # no longer praise: flip is reversed or gone (judge brief v2)
     ("The pan is heavy but durable.", NO, NO),
     ("The tent was delivered on Monday.", NO, NO),  # no opinion word
