@@ -142,6 +142,9 @@ TIME_NOUNS = frozenset(
     "holiday holidays use uses wash washes dawn dusk sunrise sunset midnight noon breakfast lunch dinner "
     "brunch lunchtime lunchtimes weekday weekdays weeknight weeknights visit visits stay stays occasion "
     "occasions arrival "
+    # occasions of service text: "fell off on the first ride", "answered on the second call"
+    "ride rides journey journeys commute commutes call calls attempt attempts try appointment appointments "
+    "session sessions shift shifts "
     "monday tuesday wednesday thursday friday saturday sunday january february march april may june july "
     "august september october november december start beginning end while".split()
 )

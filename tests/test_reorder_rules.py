@@ -60,6 +60,8 @@ CASES = [
     ("I leave the lantern on all night.", ADVL, set()),  # "on" goes with "leave" (blind review, round 10)
     ("We keep the fly off most days.", ADVL, {"Most days, we keep the fly off."}),  # the particle stays with "keep"
     ("We will take this tent on our next trip.", ADVL, {"On our next trip, we will take this tent."}),  # a real preposition
+    ("The bell you fitted fell off on the first ride.", ADVL, {"On the first ride, the bell you fitted fell off."}),  # an occasion of use
+    ("They answered on the second call.", ADVL, {"On the second call, they answered."}),
     ("It has s-video and composite outputs.", COORD, set()),
     ("#map apps and mobile users love maps.", COORD, set()),
     ("No cables and no batteries needed.", COORD, {"No batteries and no cables needed."}),  # each has its own "no"
