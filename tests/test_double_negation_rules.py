@@ -219,6 +219,8 @@ CASES = [
     ("Free parking would be nice.", NO, NO),  # a suggestion, no opinion held
     ("Outstanding care.", NO, NO),  # "*Not a bad care": a mass noun takes no article
     ("Any day next week is fine.", NO, NO),  # a free-choice subject: a scheduling reply, no opinion (round 21w)
+    ("The music is loud.", "double-negation/antonym", "The music isn't quiet."),  # loud/quiet: WordNet indirect antonyms
+    ("The staff are organised.", "double-negation/prefix", "The staff are not disorganised."),
     ("nice paperweight.", "double-negation/antonym", "not an unpleasant paperweight."),  # judged right (round 19v); negation skips the sarcasm
 ]
 
