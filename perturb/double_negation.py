@@ -369,8 +369,8 @@ def _fragment(doc: "Doc", an, lex) -> Iterator[Candidate]:
     if len(an.fragments) != 1 or len(list(sents(doc))) != 1:
         return
     fr = an.fragments[0]
-    if fr.inserted != 1 or fr.removed != 0:
-        return
+    if fr.inserted != 1 or fr.removed != 0 or fr.dropped:
+        return  # a dropped degree word: the amplifier pass above re-parses without it
     root = fr.root
     ops = [t for t in tokens(doc) if opinion_of(t, lex) is not None]
     if root.pos_ == "ADJ":

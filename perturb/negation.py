@@ -201,6 +201,7 @@ class Fragment:
     edits: list[TokenEdit]
     inserted: int
     removed: int
+    dropped: frozenset[int] = frozenset()  # degree words the negation drops ("Pretty good." -> "Not good.")
 
 
 def opinion_of(tok: "Token", lexicon: "Lexicon"):
@@ -719,6 +720,9 @@ def fragment(sent, lexicon: "Lexicon") -> Fragment | str:
     if len(ops) != 1:
         return "more than one opinion word"  # "Bad, bad bus", "excellent phone, excellent service"
     op = ops[0]
+    drop = _leading_degree(sent, op) if op.pos_ == "ADJ" and (op.i == root.i or op.head.i == root.i and op.dep_ == "amod") else []
+    if drop:
+        toks = [t for t in toks if t.i not in drop]
     if any((t.pos_ in ("NUM", "SYM", "X") or t.text in ("=", "&", "+", "/", "-", "--", ":", ";"))
            and not _intra_word_hyphen(t) and not _number_in_a_phrase(t, root) for t in toks):
         return "numbers or symbols"
@@ -759,12 +763,16 @@ def fragment(sent, lexicon: "Lexicon") -> Fragment | str:
         # the adjective and the degree words right before it: "not very comfortable"
         p = root.i
         doc = root.doc
-        while p - 1 >= sent.start and tokens(doc)[p - 1].pos_ == "ADV" and g.norm(tokens(doc)[p - 1].text) in _DEGREE:
+        while not drop and p - 1 >= sent.start and tokens(doc)[p - 1].pos_ == "ADV" and g.norm(tokens(doc)[p - 1].text) in _DEGREE:
             p -= 1
         if negs:
             if len(negs) == 1 and g.norm(negs[0].text) == "not" and negs[0].i == p - 1 and _lead_ok(sent, p - 1):
                 return Fragment(root, [TokenEdit(p - 1, p, "")], 0, 1)  # "Not bad." -> "Bad."
             return "negation in the fragment"
+        if drop:
+            if negs:
+                return "negation in the fragment"
+            return Fragment(root, [_dropped_before(doc, drop, tokens(doc)[root.i], "not")], 1, 0, frozenset(drop))
         if not _lead_ok(sent, p):
             return "words before the adjective"
         if any(t.i < p and t.dep_ != "punct" and not is_noise(t) and t.head.i == root.i
@@ -782,6 +790,7 @@ def fragment(sent, lexicon: "Lexicon") -> Fragment | str:
         return "the opinion word is not an adjective on the noun"
     if g.norm(op.text) in ("happy", "merry"):
         return "a greeting or formula"  # "Happy 4th of July!"
+    phrase = [t for t in phrase if t.i not in drop]
     for t in phrase:
         if t.i < root.i:
             ok = t.dep_ in ("det", "poss", "amod", "compound", "punct") or (
@@ -793,7 +802,7 @@ def fragment(sent, lexicon: "Lexicon") -> Fragment | str:
                 and not is_noise(c) and not _closing_adv(c):
             return f"unexpected {c.dep_} after the noun"
     first = phrase[0]
-    if not _lead_ok(sent, first.i):
+    if not _lead_ok(sent, drop[0] if drop else first.i):
         return "words before the phrase"
     if g.norm(first.text) in ("what", "such", "how", "no", "some", "any", "all", "every", "this", "that",
                                "these", "those", "another", "each", "both", "more", "less"):
@@ -809,7 +818,45 @@ def fragment(sent, lexicon: "Lexicon") -> Fragment | str:
     words = _not_words(first, root, [t for t in phrase if t.i < root.i], opinion_of(op, lexicon).polarity)
     if words.startswith("!"):
         return words[1:]
+    if drop:
+        if g.norm(first.text) in _ARTICLE_DETS:
+            return "a degree word before the article"
+        return Fragment(root, [_dropped_before(root.doc, drop, first, words)], 1, 0, frozenset(drop))
     return Fragment(root, [_not_before(first, words)], 1, 0)
+
+
+def _dropped_before(doc, drop: list[int], tok: "Token", words: str) -> TokenEdit:
+    """Replace the dropped degree words and ``tok`` by ``words`` + ``tok``, taking over the first
+    dropped word's capital ("Pretty good." -> "Not good.")."""
+    lead = doc[drop[0]].text
+    if lead[:1].isupper() and not (lead.isupper() and len(lead) > 1):
+        words = words[:1].upper() + words[1:]
+    elif lead.isupper() and len(lead) > 1:
+        words = words.upper()
+    return TokenEdit(drop[0], tok.i + 1, f"{words} {tok.text}")
+
+
+# Degree words that open a verdict and go when it is negated: a downtoner ("Pretty good." ->
+# "Not good.", "*Not pretty good" hedges) or an extreme amplifier ("Absolutely useless." -> "Not
+# useless.", "Not absolutely useless" still complains); "very" and "really" stay ("Not very good.").
+_FRAGMENT_DROPS = frozenset({"pretty", "fairly", "slightly", "somewhat", "absolutely", "extremely", "incredibly",
+                             "totally", "utterly", "truly"})
+
+
+def _leading_degree(sent, op: "Token") -> list[int]:
+    """The degree words that open the fragment and grade its opinion adjective ``op`` right
+    after them ("Pretty good.", "A bit slow to reply", "Absolutely fantastic service."), or []."""
+    doc = sent.doc
+    start = sent.start
+    while start < op.i and (doc[start].is_punct or is_noise(doc[start])):
+        start += 1
+    span = list(range(start, op.i))
+    words = [g.norm(doc[i].text) for i in span]
+    if words in (["a", "bit"], ["a", "little"]) and doc[op.i - 1].head.i == op.i:
+        return span
+    if len(words) == 1 and words[0] in _FRAGMENT_DROPS and doc[span[0]].head.i == op.i and doc[span[0]].dep_ == "advmod":
+        return span
+    return []
 
 
 def _closing_adv(c: "Token") -> bool:
@@ -2147,8 +2194,8 @@ def plan(doc: "Doc", ctx: Context) -> "Candidate | str":
                 edits.append(edit)
     for fr in an.fragments:
         for t in sent_of(fr.root):
-            if opinion_of(t, ctx.lexicon) is not None and _emphasised(t, ctx.lexicon) is not None:
-                return "fragment: " + str(_emphasised(t, ctx.lexicon))
+            if opinion_of(t, ctx.lexicon) is not None and _emphasised(t, ctx.lexicon, dropped=fr.dropped) is not None:
+                return "fragment: " + str(_emphasised(t, ctx.lexicon, dropped=fr.dropped))
     # every opinion word of the text must sit in a toggled clause (or fragment): "I hate X I hate X"
     # parsed as one clause and a loose rest, "this sucks, the service sucks" with one clause seen
     inside = {t.i for cl in an.clauses for t in cl.own} | {t.i for fr in an.fragments for t in sent_of(fr.root)}

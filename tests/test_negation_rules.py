@@ -228,6 +228,13 @@ CASES = [
     ("Please bring back the old phone menu, the new one is confusing.", NO, NO),  # the request keeps the complaint
     ("lens cap is a really annoying.", NO, NO),  # "*isn't a annoying": the article would not fit
     ("Any day next week is fine.", NO, NO),  # a free-choice subject: a scheduling reply, no opinion (round 21w)
+    # a degree word that opens a verdict goes: a downtoner or an extreme amplifier under "not" hedges
+    ("Pretty good.", "negation/fragment", "Not good."),
+    ("Absolutely useless.", "negation/fragment", "Not useless."),
+    ("A bit slow to reply to emails.", "negation/fragment", "Not slow to reply to emails."),
+    ("Extremely slow app.", "negation/fragment", "Not a slow app."),
+    ("Absolutely fantastic service.", "negation/fragment", "Not fantastic service."),
+    ("Very good.", "negation/fragment", "Not very good."),  # "very" stays: "not very good" is no longer praise
     # a universal subject of praise is denied in front: "not all" is no longer praise
     ("Everything was fine.", "negation/quantifier", "Not everything was fine."),
     ("Every rental has been smooth.", "negation/quantifier", "Not every rental has been smooth."),
