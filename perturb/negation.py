@@ -2115,6 +2115,8 @@ def plan(doc: "Doc", ctx: Context) -> "Candidate | str":
         return "a request ('please ...')"  # "Please bring back the old menu, the new one is confusing": the request stays
     if _SARCASM.search(low):  # "not a nice paperweight" still mocks (round 20v); double negation keeps it (19v)
         return "sarcasm ('nice paperweight')"
+    if re.search(r"\bat times\b", low):
+        return "frequency 'at times'"  # "*Not slow to reply to emails at times": the frame clashes with "not" (round 22)
     if "to say the least" in low:
         return "emphatic frame 'to say the least'"  # "*weren't devastated to say the least" (round 11)
     if any(g.norm(t.text) in ("hope", "hoping", "hoped", "hopes", "hopefully") for t in tokens(doc)):

@@ -232,6 +232,7 @@ CASES = [
     ("Pretty good.", "negation/fragment", "Not good."),
     ("Absolutely useless.", "negation/fragment", "Not useless."),
     ("A bit slow to reply to emails.", "negation/fragment", "Not slow to reply to emails."),
+    ("A bit slow to reply to emails at times.", NO, NO),  # "*not ... at times" (blind review, round 22)
     ("Extremely slow app.", "negation/fragment", "Not a slow app."),
     ("Absolutely fantastic service.", "negation/fragment", "Not fantastic service."),
     ("Very good.", "negation/fragment", "Not very good."),  # "very" stays: "not very good" is no longer praise
