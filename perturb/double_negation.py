@@ -50,6 +50,7 @@ from typing import TYPE_CHECKING, Iterator
 
 from pairflip.perturb import grammar as g
 from pairflip.perturb.base import NEGATORS, Candidate, Context, TokenEdit, limited_duration, match_case, sents, tokens
+from pairflip.perturb.intensifier import lone_adjective
 from pairflip.perturb.negation import (indefinite_for, analyse, elliptical_echo, clause_doubt, dropped_subject, insertion, opinion_of,
                                        or_for_and, predicate_opinion, text_guard)
 
@@ -373,14 +374,15 @@ def _fragment(doc: "Doc", an, lex) -> Iterator[Candidate]:
         return  # a dropped degree word: the amplifier pass above re-parses without it
     root = fr.root
     ops = [t for t in tokens(doc) if opinion_of(t, lex) is not None]
-    if root.pos_ == "ADJ":
+    lone = lone_adjective(root, lex)  # "Superb." tagged as a name
+    if root.pos_ == "ADJ" or lone:
         targets = sorted([root, *root.conjuncts], key=lambda t: t.i)
     else:
         targets = [t for t in ops if t.dep_ == "amod" and t.head.i == root.i]
         if len(targets) != 1:
             return
     if {t.i for t in ops} - {root.i} != {t.i for t in targets} - {root.i} or \
-            any(t.pos_ != "ADJ" or t.tag_ != "JJ" for t in targets):
+            any((t.pos_ != "ADJ" or t.tag_ != "JJ") and not lone for t in targets):
         return
     if any(c.dep_ not in ("punct", "conj", "cc") and not (c.dep_ == "prep" and g.norm(c.text) == "for")
            for t in targets for c in t.children):
@@ -390,9 +392,9 @@ def _fragment(doc: "Doc", an, lex) -> Iterator[Candidate]:
     prefix = lead.text[: len(lead.text) - len(tok.text)].rstrip()
     if g.norm(prefix) not in ("not", "not a", "not an"):
         return  # "not the best": superlatives
-    if root.pos_ != "ADJ" and g.norm(prefix) == "not" and g.norm(tok.text) not in ("a", "an"):
+    if root.pos_ != "ADJ" and not lone and g.norm(prefix) == "not" and g.norm(tok.text) not in ("a", "an"):
         return  # a bare noun phrase: "Not bad recipes."
-    if root.pos_ != "ADJ" and g.norm(root.text) in _NO_ARTICLE:
+    if root.pos_ != "ADJ" and not lone and g.norm(root.text) in _NO_ARTICLE:
         return  # "*Not an unfriendly staff."
     opps = [_opposite(t, lex, "ADJ") for t in targets]
     if any(o is None for o in opps):

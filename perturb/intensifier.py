@@ -224,7 +224,7 @@ def _target(tok: "Token", lex: "Lexicon") -> tuple["OpinionWord", str] | None:
         return None
     if phrase_at(tok, lex) is not None:
         return None  # part of a multiword expression ("worth it", "well-made"): not graded alone
-    if _name_like(tok) or _fixed_context(tok):
+    if not lone_adjective(tok, lex) and (_name_like(tok) or _fixed_context(tok)):
         return None
     if tok.lower_ in OTHER_DEGREE:
         return None
@@ -265,6 +265,15 @@ def _target(tok: "Token", lex: "Lexicon") -> tuple["OpinionWord", str] | None:
 def _capitalised_mid(tok: "Token") -> bool:
     t = tok.text
     return t[:1].isupper() and t != "I" and not (t.isupper() and len(t) > 1) and tok.i != sent_of(tok).start
+
+
+def lone_adjective(tok: "Token", lex: "Lexicon") -> bool:
+    """A one-word verdict the tagger took for a name ("Superb.", "Appalling." tagged NNP): the
+    whole sentence is the capitalised word and punctuation, and the word is a lexicon adjective."""
+    if tok.pos_ != "PROPN" or tok.dep_ != "ROOT" or lex.lookup(tok.lower_, "ADJ") is None:
+        return False
+    sent = sent_of(tok)
+    return tok.i == sent.start and all(t.is_punct for t in sent if t.i != tok.i)
 
 
 def _name_like(tok: "Token") -> bool:
@@ -317,6 +326,8 @@ def _fixed_context(tok: "Token") -> bool:
 def _is_adjective(tok: "Token", lex: "Lexicon") -> bool:
     if tok.pos_ == "ADJ" and tok.tag_ == "JJ":
         return True
+    if lone_adjective(tok, lex):
+        return True  # "Superb." tagged as a name
     if tok.tag_ in ("VBN", "VBG") and tok.dep_ in ("amod", "acomp") and lex.lookup(tok.lower_, "ADJ"):
         return True  # participial adjectives: "satisfied", "disappointing"
     if tok.tag_ == "VBN" and tok.dep_ in ("ROOT", "conj") and lex.lookup(tok.lower_, "ADJ") and _passive_be(tok) is not None:
@@ -497,6 +508,8 @@ def _opinion_tokens(doc: "Doc", lex: "Lexicon") -> Iterator[tuple["Token", "Opin
         hit = None
         if tok.pos_ in ("ADJ", "ADV"):
             hit = lex.lookup(tok.lower_, tok.pos_)
+        elif lone_adjective(tok, lex):
+            hit = lex.lookup(tok.lower_, "ADJ")  # "Superb." tagged as a name
         elif tok.pos_ in ("VERB", "NOUN"):
             hit = lex.lookup(lemma(tok), tok.pos_)
             if hit is None and tok.pos_ == "NOUN" and _is_adjective(tok, lex):
@@ -831,7 +844,8 @@ def _candidate(doc: "Doc", tok: "Token", start: int, new_words: list[str], rule:
 
 def _lower_unless_proper(tok: "Token") -> str:
     t = tok.text
-    if tok.pos_ == "PROPN" or t == "I" or (t.isupper() and len(t) > 1):
+    if tok.pos_ == "PROPN" and not (tok.dep_ == "ROOT" and tok.i == sent_of(tok).start and all(
+            x.is_punct for x in sent_of(tok) if x.i != tok.i)) or t == "I" or (t.isupper() and len(t) > 1):
         return t
     return t[:1].lower() + t[1:]
 

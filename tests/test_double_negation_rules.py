@@ -221,6 +221,7 @@ CASES = [
     ("Any day next week is fine.", NO, NO),  # a free-choice subject: a scheduling reply, no opinion (round 21w)
     ("The music is loud.", "double-negation/antonym", "The music isn't quiet."),  # loud/quiet: WordNet indirect antonyms
     ("The staff are organised.", "double-negation/prefix", "The staff are not disorganised."),
+    ("Appalling.", "double-negation/antonym", "Not good."),  # a one-word verdict the tagger took for a name
     ("nice paperweight.", "double-negation/antonym", "not an unpleasant paperweight."),  # judged right (round 19v); negation skips the sarcasm
 ]
 

@@ -143,6 +143,8 @@ CASES = [
     ("The tent stays surprisingly cool.", AMP, set()),  # already modified by an adverb
     # hendiadys, repeated stems, curly apostrophes, several sentences
     ("Nice and light!", AMP, set()),  # "nice and light" = pleasantly light
+    ("Superb.", AMP, {"Absolutely superb."}),  # a one-word verdict the tagger took for a name
+    ("Impressive.", SOFT, {"Fairly impressive."}),
     ("The staff are lovely and the rooms are too small.", AMP, set()),  # an excess complains: mixed, no direction
     ("yes, the features which are too numerous to mention are unmatched for any camera in this price range.", AMP,
      {"yes, the features which are too numerous to mention are absolutely unmatched for any camera in this price range."}),  # no excess (round 14)
