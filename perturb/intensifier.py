@@ -666,8 +666,9 @@ def _irrealis(tok: "Token", role: str) -> bool:
                 # "I would highly recommend it" asserts the opinion
                 if not (role == "verb" and node.i == tok.i and lemma(tok) == "recommend" and c.lower_ in ("would", "'d")):
                     return True
-        if node.i != tok.i and node.pos_ == "VERB" and lemma(node) in IRREALIS_VERBS:
-            return True
+        if node.i != tok.i and node.pos_ == "VERB" and lemma(node) in IRREALIS_VERBS and not (
+                lemma(node) == "want" and any(c.dep_ == "xcomp" and lemma(c) in ("say", "tell") for c in node.children)):
+            return True  # not "just wanted to say the courier was lovely": the writer's own verdict
         if node.head.i == node.i:
             return False
         node = node.head

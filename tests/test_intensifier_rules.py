@@ -144,6 +144,9 @@ CASES = [
     # hendiadys, repeated stems, curly apostrophes, several sentences
     ("Nice and light!", AMP, set()),  # "nice and light" = pleasantly light
     ("Superb.", AMP, {"Absolutely superb."}),  # a one-word verdict the tagger took for a name
+    ("Hi, just wanted to say the courier today was lovely.", AMP,  # "wanted to say": the writer's verdict, no wish
+     {"Hi, just wanted to say the courier today was very lovely."}),
+    ("I want the room to be clean.", AMP, set()),  # a wish
     ("Impressive.", SOFT, {"Fairly impressive."}),
     ("The staff are lovely and the rooms are too small.", AMP, set()),  # an excess complains: mixed, no direction
     ("yes, the features which are too numerous to mention are unmatched for any camera in this price range.", AMP,
