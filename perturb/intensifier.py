@@ -190,6 +190,7 @@ def candidates(doc: "Doc", ctx: Context) -> Iterator[Candidate]:
     if any(t.lower_ == "only" and t.head.lower_ in _MINIMISED_NOUNS for t in toks):
         return  # "The only thing I'd change is the bright lights": the one complaint of a positive text (round 16)
     yield from _excess(doc, lex)
+    yield from _comparatives(doc, lex)
     degree = _degree_phrases(lex)
     targets = [(tok, hit) for tok in tokens(doc) for hit in [_target(tok, lex)] if hit is not None]
     if not targets:
@@ -503,6 +504,9 @@ def _opinion_tokens(doc: "Doc", lex: "Lexicon") -> Iterator[tuple["Token", "Opin
             if sp.head == tok.i and not learned_silenced(tok, sp.entry, lex):
                 yield tok, sp.entry
             continue
+        if tok.tag_ in ("JJR", "RBR") and tok.dep_ in ("acomp", "ROOT") and comparative_entry(tok, lex) is not None:
+            yield tok, comparative_entry(tok, lex)  # "is much slower": the base word's opinion (not "slower shutter speeds")
+            continue
         if tok.tag_ in ("JJR", "JJS", "RBR", "RBS"):
             continue
         hit = None
@@ -633,6 +637,66 @@ def _excess(doc: "Doc", lex: "Lexicon") -> Iterator[Candidate]:
             continue  # "Way too expensive" parsed with "Way" elsewhere: never "*Way far too"
         elif prev is None or not (prev.pos_ == "ADV" or prev.dep_ in ("advmod", "npadvmod") or prev.lower_ in ("a", "bit", "little", "not")):
             yield _candidate(doc, too, too.i, [EXCESS_AMPLIFIER], "intensifier/amplify", dict(meta, op="insert", word=EXCESS_AMPLIFIER))
+
+
+# Degree words of a comparative ("much faster", "far better", "way easier"): removed as a whole;
+# "much" is the one inserted (handbook grammar, from memory: a comparative takes "much", "far",
+# "a lot", not "very"; e.g. Swan, Practical English Usage, "much, far ... with comparatives").
+COMPARATIVE_DEGREE = frozenset({"much", "far", "way"})
+COMPARATIVE_AMPLIFIER = "much"
+# Comparatives whose polarity the base word's entry gets wrong: "cheaper" is praise of a price,
+# where "cheap" (poor quality) is a complaint in the opinion lexicon.
+_COMPARATIVE_SKIP = frozenset({"cheap", "many", "much", "little", "few", "late", "early"})
+
+
+def comparative_entry(tok: "Token", lex: "Lexicon") -> "OpinionWord | None":
+    """The opinion entry of a comparative's base word ("better" -> good, "slower" -> slow), or
+    None: not a synthetic comparative, or a base whose polarity does not carry over."""
+    if tok.tag_ not in ("JJR", "RBR") or tok.lower_ in ("more", "less", "fewer"):
+        return None
+    base = {"better": "good", "worse": "bad"}.get(tok.lower_, lemma(tok).lower())  # "better" tagged RBR has "well"
+    if base == tok.lower_ or base in _COMPARATIVE_SKIP:
+        return None
+    entry = lex.lookup(base, "ADJ")
+    return entry if entry is not None and entry.grade in ("gradable", "extreme") else None
+
+
+def _comparatives(doc: "Doc", lex: "Lexicon") -> Iterator[Candidate]:
+    """Grade a comparative of an opinion word: "is much faster" -> "is faster" (remove), "is
+    faster" -> "is much faster" (amplify), "Much better since the update!" -> "Better since the
+    update!". Only as the predicate after a linking verb or as a verbless sentence, when every
+    other opinion word of the text agrees with it, outside questions, negations, wishes and orders."""
+    toks = tokens(doc)
+    for tok in toks:
+        entry = comparative_entry(tok, lex)
+        if entry is None:
+            continue
+        sent = sent_of(tok)
+        head = tok.head
+        fragment = tok.dep_ == "ROOT"
+        linked = tok.dep_ == "acomp" and head.pos_ in ("VERB", "AUX") and head.i < tok.i and (
+            lemma(head).lower() in LINKING_VERBS or {"'m": "be", "'s": "be", "'re": "be"}.get(head.lower_.replace("\u2019", "'")) == "be")
+        if not (fragment or linked) or is_question(sent) or _negated(tok) or _irrealis(tok, "predicative") or _imperative(tok):
+            continue
+        if any(c.dep_ in ("conj", "cc") for c in tok.children) or tok.dep_ == "conj":
+            continue  # "faster and cheaper": a list, graded word by word elsewhere
+        if lemma(head).lower() == "be" and head.head.i != head.i and lemma(head.head).lower() == "use":
+            continue  # "It used to be much better": a complaint about now
+        others = {_effective_polarity(t, h) for t, h in _opinion_tokens(doc, lex) if t.i != tok.i}
+        if others - {entry.polarity}:
+            continue  # another opinion the other way: the text's direction is unclear
+        meta = {"target": tok.text, "polarity": entry.polarity, "grade": entry.grade, "role": "comparative"}
+        prev = toks[tok.i - 1] if tok.i > sent.start else None
+        if prev is not None and prev.lower_ in COMPARATIVE_DEGREE and prev.head.i == tok.i and prev.dep_ in ("advmod", "npadvmod"):
+            before = toks[prev.i - 1] if prev.i > sent.start else None
+            if before is not None and (before.pos_ == "ADV" or before.lower_ in ("a", "so", "very", "not")):
+                continue  # "so much comfier", "not much better": another degree word or a negation
+            yield _candidate(doc, tok, prev.i, [], "intensifier/remove", dict(meta, op="remove", removed=prev.lower_))
+        elif prev is None or not (prev.pos_ in ("ADV", "DET") or prev.dep_ in ("advmod", "npadvmod", "det")):
+            if linked and prev is not None and prev.i != head.i:
+                continue  # only right after the linking verb: "is faster", not "is now faster"
+            yield _candidate(doc, tok, tok.i, [COMPARATIVE_AMPLIFIER], "intensifier/amplify",
+                             dict(meta, op="insert", word=COMPARATIVE_AMPLIFIER))
 
 
 # Verbs of advice to a buyer; with no subject they give an order even where the tagger reads a

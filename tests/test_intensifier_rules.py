@@ -132,7 +132,7 @@ CASES = [
     ("The tent is roomy but heavy.", AMP, set()),
     ("The stove is somewhat noisy, but it's very fast.", REM, set()),
     # comparatives, superlatives, other degree words, exclamatives
-    ("This jacket is lighter than my old one.", AMP, set()),
+    ("This jacket is lighter than my old one.", AMP, {"This jacket is much lighter than my old one."}),  # "much", never "*very lighter"
     ("The best stove I have owned.", AMP, set()),
     ("The jacket is too warm for summer.", AMP, {"The jacket is far too warm for summer."}),  # the excess is graded, never "warm" alone
     ("The jacket is warm enough.", AMP, set()),
@@ -144,6 +144,14 @@ CASES = [
     # hendiadys, repeated stems, curly apostrophes, several sentences
     ("Nice and light!", AMP, set()),  # "nice and light" = pleasantly light
     ("Superb.", AMP, {"Absolutely superb."}),  # a one-word verdict the tagger took for a name
+    # comparatives of opinion words take "much" (handbook grammar, from memory: not "very" with a comparative)
+    ("The meat is much better now.", REM, {"The meat is better now."}),
+    ("The app is faster now.", AMP, {"The app is much faster now."}),
+    ("Far better than the big agents in town.", REM, {"Better than the big agents in town."}),
+    ("Much worse since the update.", REM, {"Worse since the update."}),
+    ("It used to be much better.", REM, set()),  # "used to": a complaint about now
+    ("Prices are much cheaper.", REM, set()),  # "cheap" is a complaint in the lexicon, "cheaper" praise
+    ("The staff are lovely and the app is much slower.", REM, set()),  # mixed: no direction
     ("Hi, just wanted to say the courier today was lovely.", AMP,  # "wanted to say": the writer's verdict, no wish
      {"Hi, just wanted to say the courier today was very lovely."}),
     ("I want the room to be clean.", AMP, set()),  # a wish
