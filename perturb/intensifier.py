@@ -20,7 +20,11 @@ Rules and their operations (``meta["op"]``):
     an amplifier is deleted ("very comfortable" -> "comfortable").
 
 The first two also grade an excess: "too small" -> "far too small" (amplify); "way/much/far too
-small" -> "too small" (remove), when no favourable word stands elsewhere in the text.
+small" -> "too small" (remove), when no favourable word stands elsewhere in the text; and a
+comparative of an opinion word after a linking verb or alone: "is faster" -> "is much faster"
+(amplify), "is much/far/way faster" -> "is faster" (remove), "Much better since the update!" ->
+"Better since the update!", when every other opinion word agrees with it (not "used to be
+better", a complaint about now, nor "cheaper", whose base word the lexicon reads as a complaint).
 ``intensifier/negated-amplify`` (weaken)
     *very* before a favourable predicative adjective under a negated linking verb ("isn't
     helpful" -> "isn't very helpful": the understatement is the milder complaint).
@@ -40,7 +44,8 @@ words inside a negated scope ("not very comfortable": removing *very* makes the 
 stronger, not weaker), except by the two ``negated-`` rules above, which take only one negator,
 on the linking verb, with nothing else between it and the adjective, no emphasis ("not helpful at
 all") and no unfavourable word ("isn't very bad" is no clear step from "isn't bad"); hypothetical or wished-for contexts (if, would, should, wish, hope,
-want, expect); comparatives and superlatives ("lighter", "best", "more comfortable");
+want, expect); superlatives and analytic comparatives ("best", "more comfortable"), and
+comparatives other than the ones above;
 words already carrying another degree word (too, quite, rather, as ... as, how, enough,
 barely, ...) or any other adverb ("surprisingly cool"), except that *so* with no result clause
 after it may be removed ("is so useful" -> "is useful", weaken; never "so bad that ...") and
@@ -73,6 +78,7 @@ from typing import TYPE_CHECKING, Iterator
 
 from pairflip.perturb.base import (NEGATORS, Candidate, Context, TokenEdit, final_though, is_question, lemma, limited_duration, linking_use, phrase_at,
                                    sent_of, sents, tokens)
+from pairflip.perturb import grammar as g
 from pairflip.perturb.lexicon import OpinionWord
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -682,6 +688,12 @@ def _comparatives(doc: "Doc", lex: "Lexicon") -> Iterator[Candidate]:
             continue  # "faster and cheaper": a list, graded word by word elsewhere
         if lemma(head).lower() == "be" and head.head.i != head.i and lemma(head.head).lower() == "use":
             continue  # "It used to be much better": a complaint about now
+        if any(g.norm(t.text) == "by" and t.dep_ == "prep" and any(
+                g.norm(o.text) in ("miles", "mile", "far", "way", "lot", "margin") for o in t.subtree) for t in sent):
+            continue  # "*Much better ... by miles": the degree is given already (blind review, round 23)
+        if any(c.dep_ == "prep" and g.norm(c.text) == "than" and any(
+                g.norm(o.text) in ("others", "other", "rest") for o in c.subtree) for c in tok.children):
+            continue  # "some models are better than others": a ranking, no opinion of the product (round 23)
         others = {_effective_polarity(t, h) for t, h in _opinion_tokens(doc, lex) if t.i != tok.i}
         if others - {entry.polarity}:
             continue  # another opinion the other way: the text's direction is unclear

@@ -150,6 +150,8 @@ CASES = [
     ("Far better than the big agents in town.", REM, {"Better than the big agents in town."}),
     ("Much worse since the update.", REM, {"Worse since the update."}),
     ("It used to be much better.", REM, set()),  # "used to": a complaint about now
+    ("Better than the supermarket ready meals by miles.", AMP, set()),  # the degree is given already (round 23)
+    ("some models are better than others.", AMP, set()),  # a ranking, no opinion of the product (round 23)
     ("Prices are much cheaper.", REM, set()),  # "cheap" is a complaint in the lexicon, "cheaper" praise
     ("The staff are lovely and the app is much slower.", REM, set()),  # mixed: no direction
     ("Hi, just wanted to say the courier today was lovely.", AMP,  # "wanted to say": the writer's verdict, no wish
