@@ -692,7 +692,7 @@ def _comparatives(doc: "Doc", lex: "Lexicon") -> Iterator[Candidate]:
                 g.norm(o.text) in ("miles", "mile", "far", "way", "lot", "margin") for o in t.subtree) for t in sent):
             continue  # "*Much better ... by miles": the degree is given already (blind review, round 23)
         if any(c.dep_ == "prep" and g.norm(c.text) == "than" and any(
-                g.norm(o.text) in ("others", "other", "rest") for o in c.subtree) for c in tok.children):
+                o.dep_ == "pobj" and g.norm(o.text) in ("others", "rest") for o in c.children) for c in tok.children):
             continue  # "some models are better than others": a ranking, no opinion of the product (round 23)
         others = {_effective_polarity(t, h) for t, h in _opinion_tokens(doc, lex) if t.i != tok.i}
         if others - {entry.polarity}:
