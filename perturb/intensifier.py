@@ -277,8 +277,8 @@ def _capitalised_mid(tok: "Token") -> bool:
 def lone_adjective(tok: "Token", lex: "Lexicon") -> bool:
     """A one-word verdict the tagger took for a name ("Superb.", "Appalling." tagged NNP): the
     whole sentence is the capitalised word and punctuation, and the word is a lexicon adjective."""
-    if tok.pos_ != "PROPN" or tok.dep_ != "ROOT" or lex.lookup(tok.lower_, "ADJ") is None:
-        return False
+    if tok.pos_ != "PROPN" or tok.dep_ != "ROOT" or lex.lookup(tok.lower_, "ADJ") is None or tok.text.isupper():
+        return False  # not "GREAT!!!!!": capitals are emphasis of their own
     sent = sent_of(tok)
     return tok.i == sent.start and all(t.is_punct for t in sent if t.i != tok.i)
 

@@ -158,6 +158,7 @@ CASES = [
      {"Hi, just wanted to say the courier today was very lovely."}),
     ("I want the room to be clean.", AMP, set()),  # a wish
     ("Impressive.", SOFT, {"Fairly impressive."}),
+    ("GREAT!!!!!", AMP, set()),  # capitals are emphasis of their own
     ("The staff are lovely and the rooms are too small.", AMP, set()),  # an excess complains: mixed, no direction
     ("yes, the features which are too numerous to mention are unmatched for any camera in this price range.", AMP,
      {"yes, the features which are too numerous to mention are absolutely unmatched for any camera in this price range."}),  # no excess (round 14)
