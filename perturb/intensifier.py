@@ -24,7 +24,8 @@ small" -> "too small" (remove), when no favourable word stands elsewhere in the 
 comparative of an opinion word after a linking verb or alone: "is faster" -> "is much faster"
 (amplify), "is much/far/way faster" -> "is faster" (remove), "Much better since the update!" ->
 "Better since the update!", when every other opinion word agrees with it (not "used to be
-better", a complaint about now, nor "cheaper", whose base word the lexicon reads as a complaint).
+better", a complaint about now, nor "cheaper", whose base word the lexicon reads as a complaint);
+and "worth": "is worth it" -> "is well worth it", "Well worth the money." -> "Worth the money."
 ``intensifier/negated-amplify`` (weaken)
     *very* before a favourable predicative adjective under a negated linking verb ("isn't
     helpful" -> "isn't very helpful": the understatement is the milder complaint).
@@ -197,6 +198,7 @@ def candidates(doc: "Doc", ctx: Context) -> Iterator[Candidate]:
         return  # "The only thing I'd change is the bright lights": the one complaint of a positive text (round 16)
     yield from _excess(doc, lex)
     yield from _comparatives(doc, lex)
+    yield from _worth(doc, lex)
     degree = _degree_phrases(lex)
     targets = [(tok, hit) for tok in tokens(doc) for hit in [_target(tok, lex)] if hit is not None]
     if not targets:
@@ -709,6 +711,37 @@ def _comparatives(doc: "Doc", lex: "Lexicon") -> Iterator[Candidate]:
                 continue  # only right after the linking verb: "is faster", not "is now faster"
             yield _candidate(doc, tok, tok.i, [COMPARATIVE_AMPLIFIER], "intensifier/amplify",
                              dict(meta, op="insert", word=COMPARATIVE_AMPLIFIER))
+
+
+def _worth(doc: "Doc", lex: "Lexicon") -> Iterator[Candidate]:
+    """Grade "worth": "is worth it" -> "is well worth it" (amplify), "Well worth the money." ->
+    "Worth the money." (remove); *well* is the degree word "worth" takes (handbook usage, from
+    memory: "well worth", not "*very worth"). Only after a linking verb or opening a verbless
+    sentence, when no opinion elsewhere in the text goes the other way."""
+    toks = tokens(doc)
+    for tok in toks:
+        if tok.lower_ != "worth":
+            continue
+        sent = sent_of(tok)
+        head = tok.head
+        linked = tok.dep_ == "acomp" and head.pos_ in ("VERB", "AUX") and head.i < tok.i and lemma(head).lower() == "be"
+        opening = tok.dep_ == "ROOT" or tok.i == sent.start or tok.i == sent.start + 1 and toks[sent.start].lower_ == "well"
+        if not (linked or opening) or is_question(sent) or _negated(tok) or _irrealis(tok, "predicative") or _imperative(tok):
+            continue
+        if not any(c.dep_ in ("pobj", "dobj", "npadvmod", "attr") or c.pos_ in ("PRON", "NOUN") for c in tok.children) \
+                and not (tok.i + 1 < len(doc) and toks[tok.i + 1].pos_ in ("PRON", "DET", "NOUN")):
+            continue  # "worth" needs its object: "worth it", "worth the money"
+        if any(t.like_num or t.pos_ in ("NUM", "SYM") or t.text[:1] in "£$€" for t in doc[tok.i + 1 : sent.end]):
+            continue  # "is worth £500": a value, no verdict
+        others = {_effective_polarity(t, h) for t, h in _opinion_tokens(doc, lex) if t.i != tok.i}
+        if others - {1}:
+            continue
+        meta = {"target": tok.text, "polarity": 1, "grade": "gradable", "role": "worth"}
+        prev = toks[tok.i - 1] if tok.i > sent.start else None
+        if prev is not None and prev.lower_ == "well":
+            yield _candidate(doc, tok, prev.i, [], "intensifier/remove", dict(meta, op="remove", removed="well"))
+        elif prev is None or linked and prev.i == head.i:
+            yield _candidate(doc, tok, tok.i, ["well"], "intensifier/amplify", dict(meta, op="insert", word="well"))
 
 
 # Verbs of advice to a buyer; with no subject they give an order even where the tagger reads a

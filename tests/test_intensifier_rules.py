@@ -159,6 +159,12 @@ CASES = [
     ("I want the room to be clean.", AMP, set()),  # a wish
     ("Impressive.", SOFT, {"Fairly impressive."}),
     ("GREAT!!!!!", AMP, set()),  # capitals are emphasis of their own
+    # "worth" takes "well" (handbook usage, from memory: "well worth", not "*very worth")
+    ("The bike storage alone is worth it.", AMP, {"The bike storage alone is well worth it."}),
+    ("Well worth it.", REM, {"Worth it."}),
+    ("It was worth the wait.", AMP, {"It was well worth the wait."}),
+    ("The car is worth £500.", AMP, set()),  # a value, no verdict
+    ("Is it worth it?", AMP, set()),  # a question
     ("The staff are lovely and the rooms are too small.", AMP, set()),  # an excess complains: mixed, no direction
     ("yes, the features which are too numerous to mention are unmatched for any camera in this price range.", AMP,
      {"yes, the features which are too numerous to mention are absolutely unmatched for any camera in this price range."}),  # no excess (round 14)
