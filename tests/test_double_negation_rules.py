@@ -222,6 +222,8 @@ CASES = [
     ("The music is loud.", "double-negation/antonym", "The music isn't quiet."),  # loud/quiet: WordNet indirect antonyms
     ("The staff are organised.", "double-negation/prefix", "The staff are not disorganised."),
     ("Appalling.", "double-negation/antonym", "Not good."),  # a one-word verdict the tagger took for a name
+    ("The chicken katsu is incredible.", "double-negation/antonym", "The chicken katsu isn't bad."),  # an extreme word: the other pole's plain word
+    ("Disgraceful.", "double-negation/antonym", "Not good."),
     ("nice paperweight.", "double-negation/antonym", "not an unpleasant paperweight."),  # judged right (round 19v); negation skips the sarcasm
 ]
 
