@@ -194,6 +194,10 @@ def candidates(doc: "Doc", ctx: Context) -> Iterator[Candidate]:
         return  # "The price was great for the first year, then it went up": a turn, the story's end weighs more (round 16)
     if limited_duration(doc):
         return  # "set up was easy and we enjoyed it for just over a week": the praise is not the point (round 17v)
+    from pairflip.perturb.negation import hard_to_judge  # (negation imports this module)
+
+    if hard_to_judge(doc.text):
+        return  # "construction quality is a difficult item": no verdict to grade (rounds 19v, 26v)
     if any(t.lower_ == "only" and t.head.lower_ in _MINIMISED_NOUNS for t in toks):
         return  # "The only thing I'd change is the bright lights": the one complaint of a positive text (round 16)
     yield from _excess(doc, lex)
@@ -615,7 +619,9 @@ EXCESS_AMPLIFIER = "far"
 EXCESS_DEGREE = frozenset({"far", "way", "much"})
 # "too kind" and "too good to be true" are politeness and idiom, "too bad" a formula, "only too
 # happy" willingness: no excess to grade.
-_NOT_EXCESS = frozenset({"good", "kind", "bad", "nice", "generous", "happy", "pleased", "glad", "eager", "willing", "sure"})
+# "new" (round 26v: "it was too new to have learned much": the writer's own inexperience, no complaint)
+_NOT_EXCESS = frozenset({"good", "kind", "bad", "nice", "generous", "happy", "pleased", "glad", "eager", "willing", "sure",
+                         "new"})
 
 
 def _excess(doc: "Doc", lex: "Lexicon") -> Iterator[Candidate]:

@@ -1582,6 +1582,13 @@ _ELONGATED = re.compile(r"([a-z])\1\1")
 _SOO = re.compile(r"^s+o{2,}$")
 _SO_DEGREE = frozenset({"much", "many", "far", "well", "little", "few", "badly", "quickly", "easily", "often"})
 _EMOTICON_IN_TEXT = re.compile(r"(?:^|\s)(?:[:;=8][-o'^]?[()DPpOo3\]\[/\\|*@$]|<3|[)(][-o']?[:;=])")
+# "a difficult item / question / call": hard to judge, not a verdict on the product.
+_HARD_TO_JUDGE = re.compile(r"\b(?:difficult|hard|tricky|tough) (?:item|question|call|one to (?:judge|call|say))\b")
+def hard_to_judge(text: str) -> bool:
+    """ "a difficult item", "a tricky question": hard to judge, no verdict on the product."""
+    return _HARD_TO_JUDGE.search(text.lower()) is not None
+
+
 # Praise of a useless object stands for a broken product (common practice in device reviews):
 # negated, the sarcasm stays.
 _SARCASM = re.compile(r"\b(?:paper ?weights?|door ?stops?|door ?stoppers?)\b", re.I)
@@ -1600,6 +1607,8 @@ def _text_guard(doc: "Doc", lexicon: "Lexicon") -> str | None:
         return "a time span played down"  # "it worked good for a while": a complaint either way (blind review, round 18v)
     if _EMOTICON_IN_TEXT.search(text):
         return "emoticon"
+    if hard_to_judge(text):
+        return "'a difficult item' (hard to judge)"  # "construction quality is a difficult item": no verdict (rounds 19v, 26v)
     if _ENUMERATION.search(text):
         return "a numbered list"  # "1) frame freezes and ..."
     toks = list(doc)  # one pass of Token objects (each tokens(doc)[i] builds a new one)

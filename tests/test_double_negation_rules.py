@@ -224,6 +224,7 @@ CASES = [
     ("Appalling.", "double-negation/antonym", "Not good."),  # a one-word verdict the tagger took for a name
     ("The chicken katsu is incredible.", "double-negation/antonym", "The chicken katsu isn't bad."),  # an extreme word: the other pole's plain word
     ("Disgraceful.", "double-negation/antonym", "Not good."),
+    ("construction quality is a difficult item.", NO, NO),  # hard to judge, no verdict (round 26v)
     ("nice paperweight.", "double-negation/antonym", "not an unpleasant paperweight."),  # judged right (round 19v); negation skips the sarcasm
 ]
 

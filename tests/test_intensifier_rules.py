@@ -158,6 +158,9 @@ CASES = [
      {"Hi, just wanted to say the courier today was very lovely."}),
     ("I want the room to be clean.", AMP, set()),  # a wish
     ("Impressive.", SOFT, {"Fairly impressive."}),
+    ("construction quality is a difficult item.", AMP, set()),  # hard to judge, no verdict (round 26v)
+    ("it was too new to have learned much about the features.", AMP, set()),  # the writer's inexperience, no excess (round 26v)
+    ("The tent is too heavy to carry.", AMP, {"The tent is far too heavy to carry."}),  # control: an excess
     ("GREAT!!!!!", AMP, set()),  # capitals are emphasis of their own
     # "worth" takes "well" (handbook usage, from memory: "well worth", not "*very worth")
     ("The bike storage alone is worth it.", AMP, {"The bike storage alone is well worth it."}),

@@ -236,6 +236,8 @@ CASES = [
     ("Extremely slow app.", "negation/fragment", "Not a slow app."),
     ("Absolutely fantastic service.", "negation/fragment", "Not fantastic service."),
     ("Very good.", "negation/fragment", "Not very good."),  # "very" stays: "not very good" is no longer praise
+    ("construction quality is a difficult item.", NO, NO),  # hard to judge, no verdict (rounds 19v, 26v)
+    ("The setup was difficult.", "negation/copula", "The setup wasn't difficult."),  # control: a verdict
     # a universal subject of praise is denied in front: "not all" is no longer praise
     ("Everything was fine.", "negation/quantifier", "Not everything was fine."),
     ("Every rental has been smooth.", "negation/quantifier", "Not every rental has been smooth."),
