@@ -97,7 +97,7 @@ def test_negation_reaches_the_level_measured_on_2026_12_04(snippets, suite):
     (15.8 %); a change that loses reach fails here. After the skips that blind review rounds 10-12
     led to (afternoon of the same day): 362 of 5,122 (7.1 %); late evening, after rounds 17-19:
     369 of 5,122 (7.2 %); 2026-12-04, after rounds 20-21w: 376 of 5,122 (7.3 %), and 314 of the
-    2,455 clear-opinion product snippets (12.8 %); after rounds 22-24: 384 (7.5 %) and 322 (13.1 %)."""
+    2,455 clear-opinion product snippets (12.8 %); after rounds 22-26v: 383 (7.5 %) and 321 (13.1 %)."""
     clear = [t for r, t in snippets if abs(r) >= CLEAR]
     negated = {p.source for p in suite if p.family == "negation"}
     whole = sum(1 for t in clear if t in negated)
