@@ -7,9 +7,9 @@ Sentences: every sentence of ``benchmarks/coverage/*_sentences.jsonl`` and, with
 rules run from ``git archive SINCE`` in a temporary folder, in a subprocess, so nothing of the
 working tree leaks into them.
 
-Writes ``sheet.jsonl`` and ``key.jsonl`` into ``--out`` as ``blind_review_sample.py`` does (items
-shuffled with ``--seed``; the key's ``id`` is a hash of rule, source and variant), and prints how
-many pairs each family gained and lost.
+Writes ``sheet.jsonl`` and ``key.jsonl`` into ``--out`` with ``blind_review_sample.write_round``
+(items shuffled with ``--seed``; the key's ``id`` is a hash of rule, source and variant), and
+prints how many pairs each family gained and lost.
 
     python benchmarks/blind_review_added.py --since 1d19e2f --seed 21 --out benchmarks/blind_review/round21
 """
@@ -103,7 +103,7 @@ def main() -> None:
     ap.add_argument("--seed", type=int, required=True)
     ap.add_argument("--out", type=Path, required=True)
     args = ap.parse_args()
-    from blind_review_sample import PLAIN
+    from blind_review_sample import write_round
 
     sentences = _sentences()
     with tempfile.TemporaryDirectory() as tmp:
@@ -114,12 +114,8 @@ def main() -> None:
     added = [r for r in new if key(r) not in old_keys]
     lost = Counter(k[0].split("/")[0] for k in old_keys - new_keys)
     random.Random(args.seed).shuffle(added)
-    args.out.mkdir(parents=True, exist_ok=True)
-    with open(args.out / "sheet.jsonl", "w", encoding="utf-8") as sheet, open(args.out / "key.jsonl", "w", encoding="utf-8") as keyf:
-        for i, r in enumerate(added, 1):
-            sheet.write(json.dumps({"item": i, "first": r["source"], "second": r["variant"], "expectation": PLAIN[r["should"]]}) + "\n")
-            pid = hashlib.sha1(f'{r["rule"]}|{r["source"]}|{r["variant"]}'.encode()).hexdigest()[:16]
-            keyf.write(json.dumps({"item": i, "id": pid, "family": r["family"], "rule": r["rule"], "should": r["should"]}) + "\n")
+    write_round(args.out, [(hashlib.sha1(f'{r["rule"]}|{r["source"]}|{r["variant"]}'.encode()).hexdigest()[:16],
+                            r["family"], r["rule"], r["should"], r["source"], r["variant"]) for r in added])
     print(f"{len(sentences)} sentences; added {len(added)} pairs {dict(Counter(r['family'] for r in added))}; "
           f"lost {sum(lost.values())} {dict(lost)}; wrote {args.out}")
 

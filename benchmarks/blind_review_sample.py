@@ -52,6 +52,16 @@ def _texts(source: str) -> list[str]:
     return [t.text for t in read_corpus(source)]
 
 
+def write_round(out: Path, items: list[tuple[str, str, str, str, str, str]]) -> None:
+    """Write ``sheet.jsonl`` (what judges see) and ``key.jsonl`` (kept apart) into ``out``, item
+    numbers in the order given; ``items`` are (pair id, family, rule, should, source, variant)."""
+    out.mkdir(parents=True, exist_ok=True)
+    with open(out / "sheet.jsonl", "w", encoding="utf-8") as sheet, open(out / "key.jsonl", "w", encoding="utf-8") as key:
+        for i, (pid, family, rule, should, source, variant) in enumerate(items, 1):
+            sheet.write(json.dumps({"item": i, "first": source, "second": variant, "expectation": PLAIN[should]}, ensure_ascii=False) + "\n")
+            key.write(json.dumps({"item": i, "id": pid, "family": family, "rule": rule, "should": should}) + "\n")
+
+
 def main() -> None:
     ap = argparse.ArgumentParser()
     ap.add_argument("--seed", type=int, default=7)
@@ -81,11 +91,7 @@ def main() -> None:
         rng.shuffle(sample)
     else:
         sample = rng.sample(pool, min(args.n, len(pool)))
-    args.out.mkdir(parents=True, exist_ok=True)
-    with open(args.out / "sheet.jsonl", "w", encoding="utf-8") as sheet, open(args.out / "key.jsonl", "w", encoding="utf-8") as key:
-        for i, p in enumerate(sample, 1):
-            sheet.write(json.dumps({"item": i, "first": p.source, "second": p.variant, "expectation": PLAIN[p.should]}, ensure_ascii=False) + "\n")
-            key.write(json.dumps({"item": i, "id": p.id, "family": p.family, "rule": p.rule, "should": p.should}) + "\n")
+    write_round(args.out, [(p.id, p.family, p.rule, p.should, p.source, p.variant) for p in sample])
     counts = {f: sum(p.family == f for p in sample) for f in sorted({p.family for p in sample})}
     print(f"pool: {len(pool)} pairs with an expectation from {len(texts)} texts; wrote {len(sample)} items {counts} to {args.out}")
 

@@ -283,10 +283,15 @@ def _capitalised_mid(tok: "Token") -> bool:
 def lone_adjective(tok: "Token", lex: "Lexicon") -> bool:
     """A one-word verdict the tagger took for a name ("Superb.", "Appalling." tagged NNP): the
     whole sentence is the capitalised word and punctuation, and the word is a lexicon adjective."""
-    if tok.pos_ != "PROPN" or tok.dep_ != "ROOT" or lex.lookup(tok.lower_, "ADJ") is None or tok.text.isupper():
+    if tok.pos_ != "PROPN" or lex.lookup(tok.lower_, "ADJ") is None or tok.text.isupper():
         return False  # not "GREAT!!!!!": capitals are emphasis of their own
+    return _alone_in_sentence(tok)
+
+
+def _alone_in_sentence(tok: "Token") -> bool:
+    """The sentence is this word and punctuation ("Superb.")."""
     sent = sent_of(tok)
-    return tok.i == sent.start and all(t.is_punct for t in sent if t.i != tok.i)
+    return tok.dep_ == "ROOT" and tok.i == sent.start and all(t.is_punct for t in sent if t.i != tok.i)
 
 
 def _name_like(tok: "Token") -> bool:
@@ -358,6 +363,16 @@ def _is_adjective(tok: "Token", lex: "Lexicon") -> bool:
     return False
 
 
+def _linking_lemma(verb: "Token") -> str:
+    """The verb's lemma, with the clitics of *be* ("'m", "'s", "'re") read as *be*."""
+    return {"'m": "be", "'s": "be", "'re": "be"}.get(verb.lower_.replace("\u2019", "'"), lemma(verb).lower())
+
+
+def _asserted(tok: "Token") -> bool:
+    """The word's opinion is asserted: not in a question, under a negation, in a wish or an order."""
+    return not (is_question(sent_of(tok)) or _negated(tok) or _irrealis(tok, "predicative") or _imperative(tok))
+
+
 def _adjective_role(tok: "Token") -> str | None:
     """``attributive`` only in a plain "a/the ADJ NOUN" object, complement or fragment;
     ``predicative`` only right after a linking verb ("is roomy", "feels flimsy") or as a
@@ -385,8 +400,7 @@ def _adjective_role(tok: "Token") -> str | None:
             return None  # only "a/the ADJ NOUN"
         return "attributive"
     if dep in ("acomp", "attr", "oprd", "xcomp", "ccomp") and head.head.pos_ in ("VERB", "AUX"):
-        verb = {"'m": "be", "'s": "be", "'re": "be"}.get(head.head.lower_.replace("\u2019", "'"), lemma(head.head).lower())
-        if verb not in LINKING_VERBS or head.head.i > head.i:
+        if _linking_lemma(head.head) not in LINKING_VERBS or head.head.i > head.i:
             return None  # "we turned poor", "makes it easy": a change of state or a result, not an opinion
         if head.i != tok.i and not _adjective_list(head, tok):
             return None  # "is tidy and I like it": only a plain list of adjectives ("early and cheerful")
@@ -508,7 +522,7 @@ _TOO_MANY_TO = frozenset({"mention", "count", "list", "name", "describe"})
 
 
 def _opinion_tokens(doc: "Doc", lex: "Lexicon") -> Iterator[tuple["Token", "OpinionWord"]]:
-    from pairflip.perturb.negation import learned_silenced  # (negation imports this module)
+    from pairflip.perturb.negation import excess_degree, learned_silenced  # (negation imports this module)
 
     for tok in tokens(doc):
         sp = phrase_at(tok, lex)
@@ -516,8 +530,8 @@ def _opinion_tokens(doc: "Doc", lex: "Lexicon") -> Iterator[tuple["Token", "Opin
             if sp.head == tok.i and not learned_silenced(tok, sp.entry, lex):
                 yield tok, sp.entry
             continue
-        if tok.tag_ in ("JJR", "RBR") and tok.dep_ in ("acomp", "ROOT") and comparative_entry(tok, lex) is not None:
-            yield tok, comparative_entry(tok, lex)  # "is much slower": the base word's opinion (not "slower shutter speeds")
+        if tok.tag_ in ("JJR", "RBR") and tok.dep_ in ("acomp", "ROOT") and (comp := comparative_entry(tok, lex)) is not None:
+            yield tok, comp  # "is much slower": the base word's opinion (not "slower shutter speeds")
             continue
         if tok.tag_ in ("JJR", "JJS", "RBR", "RBS"):
             continue
@@ -530,9 +544,8 @@ def _opinion_tokens(doc: "Doc", lex: "Lexicon") -> Iterator[tuple["Token", "Opin
             hit = lex.lookup(lemma(tok), tok.pos_)
             if hit is None and tok.pos_ == "NOUN" and _is_adjective(tok, lex):
                 hit = lex.lookup(tok.lower_, "ADJ")
-        if hit is None and tok.pos_ in ("ADJ", "ADV") and tok.i > 0 and tok.doc[tok.i - 1].lower_ == "too" \
-                and tok.doc[tok.i - 1].head.i == tok.i and not any(
-                    c.dep_ == "xcomp" and lemma(c) in _TOO_MANY_TO for c in tok.children):
+        if hit is None and tok.pos_ in ("ADJ", "ADV") and excess_degree(tok) is not None and not any(
+                c.dep_ == "xcomp" and lemma(c) in _TOO_MANY_TO for c in tok.children):
             hit = OpinionWord(tok.lower_, tok.pos_, -1, "gradable")  # "the room is too small": an excess complains
         if hit is not None and hit.context == "alone" and linking_use(tok, lex):
             continue  # "smells fresh": a linking verb, the complement carries the opinion
@@ -638,7 +651,7 @@ def _excess(doc: "Doc", lex: "Lexicon") -> Iterator[Candidate]:
         if head.lower_ in _NOT_EXCESS or any(c.lower_ in ("than", "enough") for c in head.children):
             continue
         sent = sent_of(too)
-        if is_question(sent) or _negated(head) or _irrealis(head, "predicative") or _imperative(head):
+        if not _asserted(head):
             continue
         others = {_effective_polarity(t, h) for t, h in _opinion_tokens(doc, lex) if t.i != head.i}
         if others - {-1}:
@@ -688,9 +701,8 @@ def _comparatives(doc: "Doc", lex: "Lexicon") -> Iterator[Candidate]:
         sent = sent_of(tok)
         head = tok.head
         fragment = tok.dep_ == "ROOT"
-        linked = tok.dep_ == "acomp" and head.pos_ in ("VERB", "AUX") and head.i < tok.i and (
-            lemma(head).lower() in LINKING_VERBS or {"'m": "be", "'s": "be", "'re": "be"}.get(head.lower_.replace("\u2019", "'")) == "be")
-        if not (fragment or linked) or is_question(sent) or _negated(tok) or _irrealis(tok, "predicative") or _imperative(tok):
+        linked = tok.dep_ == "acomp" and head.pos_ in ("VERB", "AUX") and head.i < tok.i and _linking_lemma(head) in LINKING_VERBS
+        if not (fragment or linked) or not _asserted(tok):
             continue
         if any(c.dep_ in ("conj", "cc") for c in tok.children) or tok.dep_ == "conj":
             continue  # "faster and cheaper": a list, graded word by word elsewhere
@@ -732,7 +744,7 @@ def _worth(doc: "Doc", lex: "Lexicon") -> Iterator[Candidate]:
         head = tok.head
         linked = tok.dep_ == "acomp" and head.pos_ in ("VERB", "AUX") and head.i < tok.i and lemma(head).lower() == "be"
         opening = tok.dep_ == "ROOT" or tok.i == sent.start or tok.i == sent.start + 1 and toks[sent.start].lower_ == "well"
-        if not (linked or opening) or is_question(sent) or _negated(tok) or _irrealis(tok, "predicative") or _imperative(tok):
+        if not (linked or opening) or not _asserted(tok):
             continue
         if not any(c.dep_ in ("pobj", "dobj", "npadvmod", "attr") or c.pos_ in ("PRON", "NOUN") for c in tok.children) \
                 and not (tok.i + 1 < len(doc) and toks[tok.i + 1].pos_ in ("PRON", "DET", "NOUN")):
@@ -960,8 +972,7 @@ def _candidate(doc: "Doc", tok: "Token", start: int, new_words: list[str], rule:
 
 def _lower_unless_proper(tok: "Token") -> str:
     t = tok.text
-    if tok.pos_ == "PROPN" and not (tok.dep_ == "ROOT" and tok.i == sent_of(tok).start and all(
-            x.is_punct for x in sent_of(tok) if x.i != tok.i)) or t == "I" or (t.isupper() and len(t) > 1):
+    if tok.pos_ == "PROPN" and not _alone_in_sentence(tok) or t == "I" or (t.isupper() and len(t) > 1):
         return t
     return t[:1].lower() + t[1:]
 

@@ -1146,6 +1146,14 @@ def downtoners(cl: Clause) -> list[tuple[int, int]]:
     return out
 
 
+def dropped_spans(cl: Clause, lexicon: "Lexicon") -> tuple[tuple[int, int], ...]:
+    """The token ranges an inserted negation deletes: the clause's downtoners (:func:`downtoners`)
+    and amplifiers (:func:`degrees_to_drop`); none for a negated clause."""
+    if cl.negated:
+        return ()
+    return (*downtoners(cl), *((d.i, d.i + 1) for d in degrees_to_drop(cl, lexicon)))
+
+
 def universal_subject(cl: Clause, lexicon: "Lexicon") -> "Token | None":
     """The first word of a universal subject of praise that a negation may deny in front, or None:
     "Everything was fine." -> "Not everything was fine.", "Every rental has been smooth." -> "Not
@@ -1171,30 +1179,21 @@ def universal_subject(cl: Clause, lexicon: "Lexicon") -> "Token | None":
     if before and not (len(before) >= 1 and g.norm(before[-1].text) == "and" and before[-1].head.i != subj.i):
         return None
     quant = {t.i for t in subj.subtree if g.norm(t.text) in ("every", "all", "everything", "everyone", "everybody")}
-    if isinstance(_insertion(cl, DEFAULT_STYLE, None, True, quant), str):
+    if isinstance(insertion(cl, DEFAULT_STYLE, praise=True, gone=frozenset(quant)), str):
         return None  # a positive-polarity or scope word elsewhere, an inversion, ...
     return tokens(doc)[first.i]
 
 
 def insertion(cl: Clause, style: str, new_base: str | None = None, praise: bool = False,
-              drop_downtoners: bool = False, drop_degrees: "frozenset[int]" = frozenset()) -> tuple[str, list[TokenEdit]] | str:
+              gone: "frozenset[int]" = frozenset()) -> tuple[str, list[TokenEdit]] | str:
     """Negate a clause: (rule, edits), or the reason it cannot be done.
 
     ``new_base`` replaces the lexical verb (double negation: like -> don't dislike). With
     ``praise`` (every opinion word of the clause positive) the negation may take a frequency
     word in its scope: "isn't always helpful" is no longer praise, which is all `flip` asks.
-    With ``drop_downtoners`` a downtoner on the opinion word goes ("is a bit slow" -> "isn't
-    slow", see :func:`downtoners`).
+    ``gone``: tokens the caller deletes with the negation (:func:`dropped_spans`), which do not
+    stand in its way ("is a bit slow" -> "isn't slow").
     """
-    dropped = downtoners(cl) if drop_downtoners else []
-    gone = {i for a, b in dropped for i in range(a, b)} | set(drop_degrees)
-    res = _insertion(cl, style, new_base, praise, gone)
-    if isinstance(res, str) or not dropped:
-        return res
-    return res[0], [*res[1], *(TokenEdit(a, b, "") for a, b in dropped)]
-
-
-def _insertion(cl: Clause, style: str, new_base: str | None, praise: bool, gone: set[int]) -> tuple[str, list[TokenEdit]] | str:
     head, subj = cl.head, cl.subj
     doc = head.doc
     if subj is None and not dropped_subject(cl):
@@ -1584,6 +1583,9 @@ _SO_DEGREE = frozenset({"much", "many", "far", "well", "little", "few", "badly",
 _EMOTICON_IN_TEXT = re.compile(r"(?:^|\s)(?:[:;=8][-o'^]?[()DPpOo3\]\[/\\|*@$]|<3|[)(][-o']?[:;=])")
 # "a difficult item / question / call": hard to judge, not a verdict on the product.
 _HARD_TO_JUDGE = re.compile(r"\b(?:difficult|hard|tricky|tough) (?:item|question|call|one to (?:judge|call|say))\b")
+_AT_TIMES = re.compile(r"\bat times\b")
+
+
 def hard_to_judge(text: str) -> bool:
     """ "a difficult item", "a tricky question": hard to judge, no verdict on the product."""
     return _HARD_TO_JUDGE.search(text.lower()) is not None
@@ -1822,10 +1824,9 @@ def degrees_to_drop(cl: Clause, lexicon: "Lexicon") -> list["Token"]:
     return out
 
 
-def _insertion_guard(cl: Clause, main: list["Token"], lexicon: "Lexicon", dropped: "list[Token] | None" = None) -> str | None:
+def _insertion_guard(cl: Clause, main: list["Token"], lexicon: "Lexicon", gone: "frozenset[int]" = frozenset()) -> str | None:
     """Why inserting a negation into this clause would not give the opposite opinion, or None.
-    ``dropped``: degree words the negation will drop (see :func:`degrees_to_drop`)."""
-    gone = {t.i for t in dropped or []}
+    ``gone``: the tokens the negation deletes (:func:`dropped_spans`)."""
     doc = cl.head.doc
     for x in cl.own:
         n = g.norm(x.text)
@@ -1974,7 +1975,7 @@ def _frequency_after_aux(cl: Clause, dropped: "frozenset[int]" = frozenset()) ->
     doc = finite.doc
     nxt = tokens(doc)[finite.i + 1] if finite.i + 1 < len(doc) else None
     if nxt is not None and nxt.pos_ == "ADV" and nxt.dep_ != "acomp" and g.norm(nxt.text) not in _AFTER_AUX_OK | PRE_NEG_ADVS \
-            and (nxt.i, nxt.i + 1) not in downtoners(cl) and nxt.i not in dropped:  # "is slightly rude" -> "isn't rude": the negation drops it
+            and nxt.i not in dropped:  # "is slightly rude" -> "isn't rude": the negation drops it
         return nxt  # ("was late": the complement itself, tagged RB, is no adverb in the way)
     return None
 
@@ -2032,11 +2033,11 @@ def or_for_and(cl: Clause, lexicon: "Lexicon") -> TokenEdit | None:
     return TokenEdit(ccs[0].i, ccs[0].i + 1, "or")
 
 
-def clause_doubt(cl: Clause, lexicon: "Lexicon", coordination: bool = False, drop_degrees: bool = False) -> str | None:
+def clause_doubt(cl: Clause, lexicon: "Lexicon", coordination: bool = False, gone: "frozenset[int]" = frozenset()) -> str | None:
     """Why toggling this opinion clause would not give a clear opposite (a hedge, a part flip, a
     misplaced negation), or None. Shared by negation and double negation. With ``coordination``
-    a coordinated predicate that :func:`or_for_and` can rewrite passes; with ``drop_degrees`` a
-    degree word on a complaint that :func:`degrees_to_drop` drops passes."""
+    a coordinated predicate that :func:`or_for_and` can rewrite passes; a degree word in ``gone``
+    (the tokens the negation deletes, :func:`dropped_spans`) stands in no way."""
     if is_noise(cl.head):
         return "a link or tag read as a verb"
     if not _main_like(cl.head):
@@ -2088,15 +2089,13 @@ def clause_doubt(cl: Clause, lexicon: "Lexicon", coordination: bool = False, dro
     if not main:
         return "no opinion word on the predicate"  # "the worst attack was led by ...": a factual claim
     for t in cl.opinion:
-        why = _emphasised(t, lexicon, inserting=not cl.negated,
-                          dropped=frozenset(d.i for d in degrees_to_drop(cl, lexicon)) if drop_degrees else frozenset())
+        why = _emphasised(t, lexicon, inserting=not cl.negated, dropped=gone)
         if why is not None:
             return why
     if not cl.negated:
-        why = _insertion_guard(cl, main, lexicon, degrees_to_drop(cl, lexicon) if drop_degrees else [])
+        why = _insertion_guard(cl, main, lexicon, gone)
         if why is not None:
             return why
-    gone = frozenset(d.i for d in degrees_to_drop(cl, lexicon)) if drop_degrees else frozenset()
     if not cl.negated and _frequency_after_aux(cl, gone) is not None:
         return f"adverb {_frequency_after_aux(cl, gone).text!r} after the auxiliary"
     return None
@@ -2124,7 +2123,7 @@ def plan(doc: "Doc", ctx: Context) -> "Candidate | str":
         return "a request ('please ...')"  # "Please bring back the old menu, the new one is confusing": the request stays
     if _SARCASM.search(low):  # "not a nice paperweight" still mocks (round 20v); double negation keeps it (19v)
         return "sarcasm ('nice paperweight')"
-    if re.search(r"\bat times\b", low):
+    if _AT_TIMES.search(low):
         return "frequency 'at times'"  # "*Not slow to reply to emails at times": the frame clashes with "not" (round 22)
     if "to say the least" in low:
         return "emphatic frame 'to say the least'"  # "*weren't devastated to say the least" (round 11)
@@ -2154,7 +2153,9 @@ def plan(doc: "Doc", ctx: Context) -> "Candidate | str":
     for cl in clauses:
         if cl.nonfinite_opinion:
             return "opinion in a non-finite adverbial"
-        why = clause_doubt(cl, ctx.lexicon, coordination=not cl.negated, drop_degrees=True)
+        drops = dropped_spans(cl, ctx.lexicon)  # downtoners and amplifiers the negation deletes
+        gone = frozenset(i for a, b in drops for i in range(a, b))
+        why = clause_doubt(cl, ctx.lexicon, coordination=not cl.negated, gone=gone)
         if why is not None:
             return why
         if len({e.polarity for e in (opinion_of(t, ctx.lexicon) for t in predicate_opinion(cl)) if e is not None}) > 1:
@@ -2191,14 +2192,12 @@ def plan(doc: "Doc", ctx: Context) -> "Candidate | str":
             edits.append(_not_before(q, "not"))
             inserted += 1
         else:
-            drops = degrees_to_drop(cl, ctx.lexicon)
-            res2 = insertion(cl, style, praise=_all_positive(cl, ctx.lexicon), drop_downtoners=True,
-                             drop_degrees=frozenset(d.i for d in drops))
+            res2 = insertion(cl, style, praise=_all_positive(cl, ctx.lexicon), gone=gone)
             if isinstance(res2, str):
                 return "insertion: " + res2
             rules.append(res2[0])
             edits.extend(res2[1])
-            edits.extend(TokenEdit(d.i, d.i + 1, "") for d in drops)
+            edits.extend(TokenEdit(a, b, "") for a, b in drops)
             inserted += 1
             edit = or_for_and(cl, ctx.lexicon)  # clause_doubt let a coordination through only if it exists
             if edit is not None:
